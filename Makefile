@@ -1,0 +1,29 @@
+# hipeq developer targets. Every target creates .venv and installs the package on first use.
+PY      ?= python3
+VENV    := .venv
+BIN     := $(VENV)/bin
+STAMP   := $(VENV)/.installed
+export NUMBA_CACHE_DIR ?= $(CURDIR)/.numba_cache
+
+.PHONY: test demo bench soak clean
+
+$(STAMP): pyproject.toml
+	test -d $(VENV) || $(PY) -m venv $(VENV)
+	$(BIN)/python -m pip install --quiet --upgrade pip
+	$(BIN)/python -m pip install --quiet -e ".[test,bench]"
+	touch $(STAMP)
+
+test: $(STAMP)
+	$(BIN)/python -m pytest -q -n 2 -m "not soak"
+
+demo: $(STAMP)
+	$(BIN)/hipeq run examples/demo_plant.toml
+
+bench: $(STAMP)
+	$(BIN)/python benchmarks/run.py
+
+soak: $(STAMP)
+	HYPOTHESIS_PROFILE=soak $(BIN)/python -m pytest -q -n 2 -m soak tests/properties
+
+clean:
+	rm -rf $(VENV) .numba_cache .pytest_cache .hypothesis

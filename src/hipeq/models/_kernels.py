@@ -1,0 +1,542 @@
+"""Compiled fugacity-coefficient kernels: ideal gas, truncated virial, Lewis-Randall rule, generic cubic.
+
+Private layer: arrays and scalars in, ``out=`` buffers, status codes out; nothing here raises.
+The Python face is :mod:`hipeq.models.eos`.
+
+Two steps per state, so that solvers at fixed temperature pay the temperature-dependent work once:
+
+1. ``tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi)`` fills the temperature-dependent
+   parameters: for the cubic and Lewis-Randall models ``aij = (1 - kij) sqrt(a_i a_j)`` [Pa m6/mol2] and
+   ``bi`` [m3/mol]; for the virial model ``aij = B_ij`` [m3/mol]; and their temperature derivatives.
+2. ``ln_phi_tp`` / ``ln_phi_dn_tp`` / ``ln_phi_dT_tp`` / ``residual_tp`` evaluate a state (T, P, y).
+
+Generic two-constant cubic (Michelsen & Mollerup 2007, "Thermodynamic Models: Fundamentals and Computational
+Aspects", 2nd ed., ch. 3):
+
+    P = R T / (v - b) - a / ((v + delta1 b) (v + delta2 b))
+
+with Peng-Robinson (1976) delta1,2 = 1 +- sqrt(2) and Soave-Redlich-Kwong (1972) delta1 = 1, delta2 = 0.
+Composition and temperature derivatives follow from the reduced residual Helmholtz energy
+F = A_res / (R T) = -n g(V, B) - D(T)/T f(V, B) of the same reference.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit, prange
+
+R = 8.314462618  # J/(mol K), CODATA 2018
+
+MODEL_IDEAL = 0
+MODEL_VIRIAL = 1
+MODEL_LEWIS_RANDALL = 2
+MODEL_CUBIC = 3
+
+# per-component parameter columns of ``comp``
+TC, PC, OMEGA, M_ALPHA, QMASS, VC, ZC = 0, 1, 2, 3, 4, 5, 6
+N_COMP_COLUMNS = 7
+# cubic constants in ``consts``
+DELTA1, DELTA2, OMEGA_A, OMEGA_B = 0, 1, 2, 3
+
+ROOT_SINGLE = 0  # one real root above the co-volume
+ROOT_GAS = 1  # three roots; the larger-volume one had the lower Gibbs energy
+ROOT_LIQUID = 2  # three roots; the smaller-volume one had the lower Gibbs energy
+ROOT_INVALID = -1  # the model has no physical state here (e.g. truncated virial with Z <= 0)
+
+# Gunn, Chueh & Prausnitz (1966), AIChE J. 12, 937: effective critical constants of quantum gases
+#   Tc = Tc0 / (1 + c1 / (M T)),  Pc = Pc0 / (1 + c2 / (M T)),  M in g/mol, c1 = 21.8 K, c2 = 44.2 K
+QUANTUM_C1 = 21.8
+QUANTUM_C2 = 44.2
+
+
+@njit(cache=True)
+def effective_critical(T, comp, i):
+    """Critical constants of component i at T, with the quantum correction when comp[i, QMASS] > 0.
+
+    Returns (Tc, Pc, dTc/dT, dPc/dT).
+    """
+    tc0 = comp[i, TC]
+    pc0 = comp[i, PC]
+    mass = comp[i, QMASS]
+    if mass > 0.0:
+        d1 = 1.0 + QUANTUM_C1 / (mass * T)
+        d2 = 1.0 + QUANTUM_C2 / (mass * T)
+        tc = tc0 / d1
+        pc = pc0 / d2
+        dtc = tc0 * QUANTUM_C1 / (mass * T * T) / (d1 * d1)
+        dpc = pc0 * QUANTUM_C2 / (mass * T * T) / (d2 * d2)
+        return tc, pc, dtc, dpc
+    return tc0, pc0, 0.0, 0.0
+
+
+# ---------------------------------------------------------------------------------------------------------
+# temperature-dependent parameters
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True)
+def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
+    nc = comp.shape[0]
+    oa = consts[OMEGA_A]
+    ob = consts[OMEGA_B]
+    ai = np.empty(nc)
+    dai = np.empty(nc)
+    for i in range(nc):
+        tc, pc, dtc, dpc = effective_critical(T, comp, i)
+        c = oa * R * R * tc * tc / pc
+        dc = oa * R * R * (2.0 * tc * dtc / pc - tc * tc * dpc / (pc * pc))
+        tau = T / tc
+        dtau = (tc - T * dtc) / (tc * tc)
+        s = math.sqrt(tau)
+        m = comp[i, M_ALPHA]
+        q = 1.0 + m * (1.0 - s)
+        alpha = q * q
+        dalpha = -m * q * dtau / s
+        ai[i] = c * alpha
+        dai[i] = dc * alpha + c * dalpha
+        bi[i] = ob * R * tc / pc
+        dbi[i] = ob * R * (dtc / pc - tc * dpc / (pc * pc))
+    for i in range(nc):
+        for j in range(nc):
+            g = math.sqrt(ai[i] * ai[j])
+            one_k = 1.0 - kmat[i, j]
+            aij[i, j] = one_k * g
+            daij[i, j] = one_k * (dai[i] * ai[j] + ai[i] * dai[j]) / (2.0 * g)
+
+
+@njit(cache=True)
+def _virial_tdep(T, comp, kmat, bij, dbij):
+    """Second virial coefficients B_ij(T) [m3/mol] from the Pitzer-type generalized correlation.
+
+    B_ij P_cij / (R T_cij) = B0(Tr) + omega_ij B1(Tr), B0 = 0.083 - 0.422 / Tr^1.6, B1 = 0.139 - 0.172 / Tr^4.2
+    (Abbott's form of the Pitzer & Curl 1957 correlation; Smith, Van Ness & Abbott, "Introduction to Chemical
+    Engineering Thermodynamics", 7th ed., eqs. 3.65-3.66), with the Prausnitz combining rules
+    T_cij = sqrt(T_ci T_cj)(1 - k_ij), omega_ij = (omega_i + omega_j)/2, Z_cij = (Z_ci + Z_cj)/2,
+    V_cij = ((V_ci^(1/3) + V_cj^(1/3))/2)^3, P_cij = Z_cij R T_cij / V_cij (same book, eqs. 11.70-11.74).
+    """
+    nc = comp.shape[0]
+    for i in range(nc):
+        tci, pci, dtci, _ = effective_critical(T, comp, i)
+        for j in range(i, nc):
+            tcj, pcj, dtcj, _ = effective_critical(T, comp, j)
+            one_k = 1.0 - kmat[i, j]
+            tcij = math.sqrt(tci * tcj) * one_k
+            dtcij = 0.5 * one_k * (dtci * tcj + tci * dtcj) / math.sqrt(tci * tcj)
+            wij = 0.5 * (comp[i, OMEGA] + comp[j, OMEGA])
+            zcij = 0.5 * (comp[i, ZC] + comp[j, ZC])
+            vroot = 0.5 * (comp[i, VC] ** (1.0 / 3.0) + comp[j, VC] ** (1.0 / 3.0))
+            vcij = vroot * vroot * vroot
+            # R T_cij / P_cij = V_cij / Z_cij: independent of T even for quantum gases (their V_c is fixed)
+            scale = vcij / zcij
+            tr = T / tcij
+            dtr = (tcij - T * dtcij) / (tcij * tcij)
+            b0 = 0.083 - 0.422 * tr ** -1.6
+            b1 = 0.139 - 0.172 * tr ** -4.2
+            db0 = 0.422 * 1.6 * tr ** -2.6 * dtr
+            db1 = 0.172 * 4.2 * tr ** -5.2 * dtr
+            bij[i, j] = scale * (b0 + wij * b1)
+            bij[j, i] = bij[i, j]
+            dbij[i, j] = scale * (db0 + wij * db1)
+            dbij[j, i] = dbij[i, j]
+
+
+@njit(cache=True)
+def tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
+    """Fill the temperature-dependent parameters of model ``code`` at T [K] (see module docstring)."""
+    if code == MODEL_CUBIC or code == MODEL_LEWIS_RANDALL:
+        _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi)
+    elif code == MODEL_VIRIAL:
+        _virial_tdep(T, comp, kmat, aij, daij)
+        bi[:] = 0.0
+        dbi[:] = 0.0
+    else:
+        aij[:, :] = 0.0
+        daij[:, :] = 0.0
+        bi[:] = 0.0
+        dbi[:] = 0.0
+
+
+# ---------------------------------------------------------------------------------------------------------
+# the cubic: roots
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True)
+def _polish(z, c2, c1, c0):
+    for _ in range(3):
+        f = ((z + c2) * z + c1) * z + c0
+        df = (3.0 * z + 2.0 * c2) * z + c1
+        if df == 0.0:
+            break
+        z -= f / df
+    return z
+
+
+@njit(cache=True)
+def _g_of_root(z, A, B, d1, d2):
+    """Residual Gibbs energy over RT of the mixture at the root z (the same formula for every root)."""
+    return z - 1.0 - math.log(z - B) - A / (B * (d1 - d2)) * math.log((z + d1 * B) / (z + d2 * B))
+
+
+@njit(cache=True)
+def cubic_z(A, B, d1, d2):
+    """Compressibility factor of the generic cubic at reduced parameters A = aP/(RT)^2, B = bP/(RT).
+
+    Solves Z^3 + [(u - 1) B - 1] Z^2 + [A + w B^2 - u B - u B^2] Z - [A B + w B^2 + w B^3] = 0 with
+    u = delta1 + delta2, w = delta1 delta2 (trigonometric / Cardano solution, Newton-polished). Of several
+    roots above B the one with the lowest Gibbs energy is returned. Returns (Z, root code).
+    """
+    u = d1 + d2
+    w = d1 * d2
+    c2 = (u - 1.0) * B - 1.0
+    c1 = A + w * B * B - u * B - u * B * B
+    c0 = -(A * B + w * B * B + w * B * B * B)
+    p = c1 - c2 * c2 / 3.0
+    q = 2.0 * c2 * c2 * c2 / 27.0 - c2 * c1 / 3.0 + c0
+    disc = 0.25 * q * q + p * p * p / 27.0
+    shift = -c2 / 3.0
+    if disc > 0.0 or p >= 0.0:
+        sd = math.sqrt(max(disc, 0.0))
+        t = np.cbrt(-0.5 * q + sd) + np.cbrt(-0.5 * q - sd)
+        z = _polish(t + shift, c2, c1, c0)
+        if z <= B:
+            return z, ROOT_INVALID
+        return z, ROOT_SINGLE
+    r = 2.0 * math.sqrt(-p / 3.0)
+    arg = 3.0 * q / (p * r)
+    arg = min(1.0, max(-1.0, arg))
+    phi = math.acos(arg) / 3.0
+    z_hi = _polish(r * math.cos(phi) + shift, c2, c1, c0)
+    z_lo = _polish(r * math.cos(phi + 2.0 * math.pi / 3.0) + shift, c2, c1, c0)
+    z_mid = _polish(r * math.cos(phi + 4.0 * math.pi / 3.0) + shift, c2, c1, c0)
+    if z_mid < z_lo:
+        z_lo = z_mid
+    if z_lo <= B:
+        if z_hi <= B:
+            return z_hi, ROOT_INVALID
+        return z_hi, ROOT_SINGLE
+    if _g_of_root(z_lo, A, B, d1, d2) < _g_of_root(z_hi, A, B, d1, d2):
+        return z_lo, ROOT_LIQUID
+    return z_hi, ROOT_GAS
+
+
+# ---------------------------------------------------------------------------------------------------------
+# the cubic mixture: ln phi, and derivatives from the reduced residual Helmholtz energy
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True)
+def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
+    nc = y.shape[0]
+    d1 = consts[DELTA1]
+    d2 = consts[DELTA2]
+    a = 0.0
+    b = 0.0
+    for i in range(nc):
+        s = 0.0
+        for j in range(nc):
+            s += y[j] * aij[i, j]
+        out[i] = s
+        a += y[i] * s
+        b += y[i] * bi[i]
+    rt = R * T
+    A = a * P / (rt * rt)
+    B = b * P / rt
+    z, root = cubic_z(A, B, d1, d2)
+    if root == ROOT_INVALID:
+        for i in range(nc):
+            out[i] = 0.0
+        return z, root
+    lzb = math.log(z - B)
+    lq = math.log((z + d1 * B) / (z + d2 * B))
+    c = A / (B * (d1 - d2)) * lq
+    for i in range(nc):
+        br = bi[i] / b
+        out[i] = br * (z - 1.0) - lzb - c * (2.0 * out[i] / a - br)
+    return z, root
+
+
+@njit(cache=True)
+def _helmholtz_parts(T, V, a, b, d1, d2):
+    """Derivatives of g and f of Michelsen & Mollerup (2007), ch. 3, at one mole: returns a tuple."""
+    vb = V - b
+    p1 = V + d1 * b
+    p2 = V + d2 * b
+    g = math.log(1.0 - b / V)
+    g_V = b / (V * vb)
+    g_B = -1.0 / vb
+    g_VV = -1.0 / (vb * vb) + 1.0 / (V * V)
+    g_BV = 1.0 / (vb * vb)
+    g_BB = -1.0 / (vb * vb)
+    f = math.log(p1 / p2) / (R * b * (d1 - d2))
+    f_V = -1.0 / (R * p1 * p2)
+    f_B = -(f + V * f_V) / b
+    f_VV = (2.0 * V + (d1 + d2) * b) / (R * p1 * p1 * p2 * p2)
+    f_BV = -(2.0 * f_V + V * f_VV) / b
+    f_BB = -(2.0 * f_B + V * f_BV) / b
+    return g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB
+
+
+@njit(cache=True)
+def _cubic_mix_sums(y, aij, bi, si):
+    nc = y.shape[0]
+    a = 0.0
+    b = 0.0
+    for i in range(nc):
+        s = 0.0
+        for j in range(nc):
+            s += y[j] * aij[i, j]
+        si[i] = s
+        a += y[i] * s
+        b += y[i] * bi[i]
+    return a, b
+
+
+@njit(cache=True)
+def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac):
+    """ln phi_i and jac_ij = n d ln phi_i / d n_j at fixed T, P (Michelsen & Mollerup 2007, eq. 2.x:
+    d ln phi_i/d n_j = F_ij + 1/n + P_i P_j / (R T P_V))."""
+    nc = y.shape[0]
+    z, root = _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+    if root == ROOT_INVALID:
+        jac[:, :] = 0.0
+        return z, root
+    d1 = consts[DELTA1]
+    d2 = consts[DELTA2]
+    si = np.empty(nc)
+    a, b = _cubic_mix_sums(y, aij, bi, si)
+    rt = R * T
+    V = z * rt / P
+    g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2)
+    F_nB = -g_B
+    F_BD = -f_B / T
+    F_BB = -g_BB - a / T * f_BB
+    F_D = -f / T
+    F_BV = -g_BV - a / T * f_BV
+    F_DV = -f_V / T
+    F_VV = -g_VV - a / T * f_VV
+    P_V = -rt * F_VV - rt / (V * V)
+    Pi = np.empty(nc)
+    for i in range(nc):
+        F_iV = -g_V + F_BV * bi[i] + F_DV * 2.0 * si[i]
+        Pi[i] = -rt * F_iV + rt / V
+    for i in range(nc):
+        for j in range(i, nc):
+            Di = 2.0 * si[i]
+            Dj = 2.0 * si[j]
+            F_ij = (F_nB * (bi[i] + bi[j]) + F_BD * (bi[i] * Dj + bi[j] * Di) + F_BB * bi[i] * bi[j]
+                    + F_D * 2.0 * aij[i, j])
+            v = F_ij + 1.0 + Pi[i] * Pi[j] / (rt * P_V)
+            jac[i, j] = v
+            jac[j, i] = v
+    return z, root
+
+
+@njit(cache=True)
+def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
+    """ln phi_i and d ln phi_i / dT at fixed P, n (Michelsen & Mollerup 2007:
+    d ln phi_i/dT = F_iT + 1/T + P_i P_T / (R T P_V)), with temperature-dependent b for quantum gases.
+    Returns (Z, root, F, T F_T) with F = A_res/(nRT) so that callers can form residual properties."""
+    nc = y.shape[0]
+    z, root = _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+    if root == ROOT_INVALID:
+        dT[:] = 0.0
+        return z, root, 0.0, 0.0
+    d1 = consts[DELTA1]
+    d2 = consts[DELTA2]
+    si = np.empty(nc)
+    a, b = _cubic_mix_sums(y, aij, bi, si)
+    a_T = 0.0
+    b_T = 0.0
+    for i in range(nc):
+        b_T += y[i] * dbi[i]
+        for j in range(nc):
+            a_T += y[i] * y[j] * daij[i, j]
+    rt = R * T
+    V = z * rt / P
+    g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2)
+    E = a / T
+    E_T = a_T / T - a / (T * T)
+    F = -g - E * f
+    F_T = -g_B * b_T - E_T * f - E * f_B * b_T
+    F_V = -g_V - E * f_V
+    F_VV = -g_VV - E * f_VV
+    F_VT = -g_BV * b_T - E_T * f_V - E * f_BV * b_T
+    F_BV = -g_BV - E * f_BV
+    F_DV = -f_V / T
+    P_V = -rt * F_VV - rt / (V * V)
+    P_T = -R * F_V - rt * F_VT + R / V
+    for i in range(nc):
+        Di = 2.0 * si[i]
+        DiT = 0.0
+        for j in range(nc):
+            DiT += 2.0 * y[j] * daij[i, j]
+        F_iT = (-g_B * b_T
+                - g_BB * b_T * bi[i] - g_B * dbi[i]
+                - E_T * f_B * bi[i] - E * f_BB * b_T * bi[i] - E * f_B * dbi[i]
+                - (f_B * b_T / T - f / (T * T)) * Di - f / T * DiT)
+        F_iV = -g_V + F_BV * bi[i] + F_DV * Di
+        P_i = -rt * F_iV + rt / V
+        dT[i] = F_iT + 1.0 / T + P_i * P_T / (rt * P_V)
+    return z, root, F, T * F_T
+
+
+# ---------------------------------------------------------------------------------------------------------
+# virial and Lewis-Randall
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True)
+def _virial_ln_phi(T, P, y, bij, out):
+    """ln phi_i = (2 sum_j y_j B_ij - B) P / (R T), Z = 1 + B P / (R T) (truncated virial in pressure)."""
+    nc = y.shape[0]
+    bmix = 0.0
+    for i in range(nc):
+        s = 0.0
+        for j in range(nc):
+            s += y[j] * bij[i, j]
+        out[i] = s
+        bmix += y[i] * s
+    c = P / (R * T)
+    for i in range(nc):
+        out[i] = (2.0 * out[i] - bmix) * c
+    z = 1.0 + bmix * c
+    return z, (ROOT_SINGLE if z > 0.0 else ROOT_INVALID), bmix
+
+
+@njit(cache=True)
+def _pure_cubic(T, P, a, b, d1, d2):
+    rt = R * T
+    A = a * P / (rt * rt)
+    B = b * P / rt
+    z, root = cubic_z(A, B, d1, d2)
+    if root == ROOT_INVALID:
+        return z, root, 0.0
+    return z, root, _g_of_root(z, A, B, d1, d2)
+
+
+# ---------------------------------------------------------------------------------------------------------
+# dispatchers (the contract the solvers use)
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True)
+def ln_phi_tp(code, T, P, y, aij, bi, consts, out):
+    """ln phi_i of model ``code`` at T [K], P [Pa], mole fractions y; returns (Z, root code)."""
+    nc = y.shape[0]
+    if code == MODEL_CUBIC:
+        return _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+    if code == MODEL_VIRIAL:
+        z, root, _ = _virial_ln_phi(T, P, y, aij, out)
+        return z, root
+    if code == MODEL_LEWIS_RANDALL:
+        zmix = 0.0
+        worst = ROOT_SINGLE
+        for i in range(nc):
+            z, root, lnphi = _pure_cubic(T, P, aij[i, i], bi[i], consts[DELTA1], consts[DELTA2])
+            out[i] = lnphi
+            zmix += y[i] * z
+            if root == ROOT_INVALID:
+                worst = ROOT_INVALID
+            elif root > worst and worst != ROOT_INVALID:
+                worst = root
+        return zmix, worst
+    for i in range(nc):
+        out[i] = 0.0
+    return 1.0, ROOT_SINGLE
+
+
+@njit(cache=True)
+def ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac):
+    """As ``ln_phi_tp``, also writing jac[i, j] = n d ln phi_i / d n_j at fixed T, P (symmetric)."""
+    nc = y.shape[0]
+    if code == MODEL_CUBIC:
+        return _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac)
+    if code == MODEL_VIRIAL:
+        z, root, bmix = _virial_ln_phi(T, P, y, aij, out)
+        c = P / (R * T)
+        for i in range(nc):
+            si = 0.0
+            for k in range(nc):
+                si += y[k] * aij[i, k]
+            for j in range(nc):
+                sj = 0.0
+                for k in range(nc):
+                    sj += y[k] * aij[j, k]
+                jac[i, j] = 2.0 * c * (aij[i, j] - si - sj + bmix)
+        return z, root
+    jac[:, :] = 0.0
+    return ln_phi_tp(code, T, P, y, aij, bi, consts, out)
+
+
+@njit(cache=True)
+def residual_dT_tp(code, T, P, y, aij, bi, daij, dbi, consts, out, dT):
+    """ln phi_i and d ln phi_i/dT at fixed P, y, plus the mixture's residual Gibbs energy and enthalpy.
+
+    Returns (Z, root, g_res/(R T), h_res/(R T)), with g_res/RT = F + Z - 1 - ln Z and
+    h_res/RT = -T F_T + Z - 1 for the cubic (Michelsen & Mollerup 2007, table 2.x).
+    """
+    nc = y.shape[0]
+    if code == MODEL_CUBIC:
+        z, root, F, TF_T = _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT)
+        if root == ROOT_INVALID:
+            return z, root, 0.0, 0.0
+        return z, root, F + z - 1.0 - math.log(z), -TF_T + z - 1.0
+    if code == MODEL_VIRIAL:
+        z, root, bmix = _virial_ln_phi(T, P, y, aij, out)
+        c = P / (R * T)
+        bmix_T = 0.0
+        for i in range(nc):
+            s = 0.0
+            for j in range(nc):
+                s += y[j] * daij[i, j]
+            dT[i] = s
+            bmix_T += y[i] * s
+        for i in range(nc):
+            dT[i] = (2.0 * dT[i] - bmix_T) * c - out[i] / T
+        return z, root, bmix * c, (bmix - T * bmix_T) * c
+    if code == MODEL_LEWIS_RANDALL:
+        one = np.ones(1)
+        a1 = np.empty((1, 1))
+        da1 = np.empty((1, 1))
+        b1 = np.empty(1)
+        db1 = np.empty(1)
+        o1 = np.empty(1)
+        t1 = np.empty(1)
+        zmix = 0.0
+        gmix = 0.0
+        hmix = 0.0
+        worst = ROOT_SINGLE
+        for i in range(nc):
+            a1[0, 0] = aij[i, i]
+            da1[0, 0] = daij[i, i]
+            b1[0] = bi[i]
+            db1[0] = dbi[i]
+            z, root, F, TF_T = _cubic_ln_phi_dT(T, P, one, a1, b1, da1, db1, consts, o1, t1)
+            if root == ROOT_INVALID:
+                worst = ROOT_INVALID
+            elif root > worst and worst != ROOT_INVALID:
+                worst = root
+            out[i] = o1[0]
+            dT[i] = t1[0]
+            zmix += y[i] * z
+            gmix += y[i] * o1[0]
+            hmix += y[i] * (-TF_T + z - 1.0)
+        return zmix, worst, gmix, hmix
+    for i in range(nc):
+        out[i] = 0.0
+        dT[i] = 0.0
+    return 1.0, ROOT_SINGLE, 0.0, 0.0
+
+
+# ---------------------------------------------------------------------------------------------------------
+# batch over states (used by the public fugacity_coefficients call)
+# ---------------------------------------------------------------------------------------------------------
+@njit(cache=True, parallel=True)
+def states_batch(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
+    """Evaluate ln phi, d ln phi/dT, Z, root code, g_res/RT and h_res/RT for many states (T[k], P[k], Y[k])."""
+    n = T.shape[0]
+    nc = comp.shape[0]
+    for k in prange(n):
+        aij = np.empty((nc, nc))
+        daij = np.empty((nc, nc))
+        bi = np.empty(nc)
+        dbi = np.empty(nc)
+        tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
+        z, root, g, h = residual_dT_tp(code, T[k], P[k], Y[k], aij, bi, daij, dbi, consts,
+                                       ln_phis[k], dln_phis_dT[k])
+        Z[k] = z
+        roots[k] = root
+        g_res[k] = g
+        h_res[k] = h
