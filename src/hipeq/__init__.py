@@ -1,2 +1,54 @@
-"""hipeq: chemical reaction equilibrium of gas mixtures at high pressure with real-gas fugacity corrections."""
+"""hipeq: chemical reaction equilibrium of gas mixtures at high pressure with real-gas fugacity corrections.
+
+Standard state throughout: the ideal gas at 1 bar. SI units in the Python API (K, Pa, m3, mol, J).
+
+Equilibrium is a thermodynamic limit, not a design basis for pressure equipment; follow local codes and
+licensed engineering practice.
+
+The public names are imported lazily so that ``import hipeq`` stays fast; the numerical core compiles (or
+loads from the numba cache) on first use.
+"""
+from __future__ import annotations
+
+import importlib
+from typing import Any
+
 __version__ = "0.1.0"
+
+# public name -> module that defines it (imports flow downwards: data -> models -> solvers -> analysis)
+_PUBLIC = {
+    "species": "hipeq.data.species",
+    "Species": "hipeq.data.species",
+    "register_species": "hipeq.data.species",
+    "load_species_file": "hipeq.data.species",
+    "Reaction": "hipeq.data.reactions",
+    "independent_reactions": "hipeq.data.reactions",
+    "equilibrium_constant": "hipeq.data.thermochem",
+    "fugacity_coefficients": "hipeq.models.eos",
+    "FugacityResult": "hipeq.models.eos",
+    "build_model": "hipeq.models.eos",
+    "ReactionSystem": "hipeq.solvers.system",
+    "EquilibriumResult": "hipeq.solvers.result",
+    "BatchResult": "hipeq.solvers.result",
+    "HipeqError": "hipeq.errors",
+    "InputError": "hipeq.errors",
+    "UnknownSpeciesError": "hipeq.errors",
+    "UnbalancedReactionError": "hipeq.errors",
+    "NotConvergedError": "hipeq.errors",
+    "OutOfRangeWarning": "hipeq.errors",
+}
+
+__all__ = sorted(_PUBLIC) + ["__version__"]
+
+
+def __getattr__(name: str) -> Any:
+    module = _PUBLIC.get(name)
+    if module is None:
+        raise AttributeError(f"module 'hipeq' has no attribute {name!r}")
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return __all__
