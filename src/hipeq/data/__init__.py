@@ -1,0 +1,14 @@
+"""Data layer: species records, reactions and standard-state thermochemistry (ideal gas at 1 bar).
+
+Importing this package needs only numpy; the ``chemicals`` databanks are loaded at the first species look-up.
+"""
+from hipeq.data.reactions import (Reaction, check_independent, element_matrix, independent_reactions,
+                                  stoichiometric_matrix)
+from hipeq.data.species import Species, load_species_file, register_species, species
+from hipeq.data.thermochem import (P_STANDARD, R, equilibrium_constant, ln_equilibrium_constants,
+                                   standard_enthalpies, standard_entropies, standard_gibbs)
+
+__all__ = ["species", "Species", "register_species", "load_species_file", "Reaction", "independent_reactions",
+           "check_independent", "element_matrix", "stoichiometric_matrix", "equilibrium_constant",
+           "ln_equilibrium_constants", "standard_gibbs", "standard_enthalpies", "standard_entropies",
+           "P_STANDARD", "R"]
