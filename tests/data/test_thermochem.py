@@ -124,3 +124,38 @@ def test_heat_capacity_forms():
     assert err.value.field == "cp"
     with pytest.raises(InputError, match="needs key 'coefficients'"):
         heat_capacity_from_mapping({"form": "TRC", "T_min": 50.0, "T_max": 3000.0})
+
+
+def test_compiled_profiles_match_the_correlation_objects():
+    """The compiled core (hipeq.data._kernels) against each record's own Cp integrals, every bundled species."""
+    from hipeq.data.species import available_species
+    from hipeq.data.thermochem import standard_enthalpies, standard_entropies
+
+    names = list(available_species())
+    recs = [species(n) for n in names]
+    T = np.array([300.0, 650.0, 1200.0])
+    H = standard_enthalpies(names, T)
+    S = standard_entropies(names, T)
+    for k, rec in enumerate(recs):
+        h_ref = rec.Hf + rec.cp.integral(298.15, T)
+        s_ref = rec.S0 + rec.cp.integral_over_T(298.15, T)
+        np.testing.assert_allclose(H[:, k], h_ref, rtol=0, atol=1e-8 * max(1.0, abs(rec.Hf)))
+        np.testing.assert_allclose(S[:, k], s_ref, rtol=1e-13, atol=1e-10)
+
+
+def test_compiled_polynomial_and_constant_forms():
+    """Polynomial override Cp = a0 + a1 T: H and S integrals by hand."""
+    from hipeq.data.species import register_species, reset_registry
+    from hipeq.data.thermochem import standard_enthalpies, standard_entropies
+
+    try:
+        register_species("N2", cp={"form": "polynomial", "coefficients": [28.0, 0.004], "T_min": 200.0,
+                                   "T_max": 2000.0}, source="test polynomial")
+        T = 800.0
+        h = standard_enthalpies(["N2"], T)[0]
+        s = standard_entropies(["N2"], T)[0]
+        rec = species("N2")
+        assert h == pytest.approx(rec.Hf + 28.0 * (T - 298.15) + 0.002 * (T**2 - 298.15**2), rel=1e-12)
+        assert s == pytest.approx(rec.S0 + 28.0 * np.log(T / 298.15) + 0.004 * (T - 298.15), rel=1e-12)
+    finally:
+        reset_registry()

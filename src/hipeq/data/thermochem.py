@@ -17,8 +17,8 @@ outside it an InputError naming "T" is raised unless ``extrapolate=True`` (then 
 """
 from __future__ import annotations
 
+import functools
 import math
-import warnings
 from collections.abc import Sequence
 
 import numpy as np
@@ -27,11 +27,11 @@ import numpy.typing as npt
 from hipeq.data.heat_capacity import check_temperature
 from hipeq.data.reactions import Reaction, as_reaction, stoichiometric_matrix
 from hipeq.data.species import Species, T_REFERENCE, species
-from hipeq.errors import InputError, OutOfRangeWarning
+from hipeq.errors import InputError
 
 __all__ = ["P_STANDARD", "R", "T_REFERENCE", "standard_enthalpies", "standard_entropies", "standard_gibbs",
            "reaction_enthalpy", "reaction_entropy", "reaction_gibbs", "equilibrium_constant",
-           "ln_equilibrium_constant", "ln_equilibrium_constants", "METHODS"]
+           "ln_equilibrium_constant", "ln_equilibrium_constants", "METHODS", "standard_state_table"]
 
 P_STANDARD = 1e5  # [Pa] standard-state pressure (ideal gas at 1 bar)
 R = 8.314462618  # [J/(mol K)] molar gas constant (CODATA 2018, exact)
@@ -58,17 +58,53 @@ def _temperature(T: Temperature, records: Sequence[Species], extrapolate: bool) 
     return arr
 
 
+def standard_state_table(records: Sequence[Species]) -> np.ndarray:
+    """The compiled-core table of a species list (one row per species; layout in :mod:`hipeq.data._kernels`).
+
+    Rows hold the form of the Cp correlation, ΔfH°(298.15 K) [J/mol], S°(298.15 K) [J/(mol K)] and up to eight
+    Cp coefficients. Cached per tuple of records (records are frozen and hashable). Raises InputError("cp") for
+    a correlation the compiled core cannot hold (a polynomial of degree > 7).
+    """
+    return _table(tuple(records))
+
+
+@functools.lru_cache(maxsize=256)
+def _table(records: tuple[Species, ...]) -> np.ndarray:
+    from hipeq.data import _kernels as k
+    from hipeq.data.heat_capacity import ConstantHeatCapacity, PolynomialHeatCapacity, TRCHeatCapacity
+
+    table = np.zeros((len(records), k.N_COLUMNS))
+    for i, rec in enumerate(records):
+        table[i, k.COL_HF] = rec.Hf
+        table[i, k.COL_S0] = rec.S0
+        cp = rec.cp
+        if isinstance(cp, TRCHeatCapacity):
+            table[i, k.COL_FORM] = k.FORM_TRC
+            table[i, k.COL_C0:k.COL_C0 + 8] = cp.coefficients
+        elif isinstance(cp, PolynomialHeatCapacity):
+            if len(cp.coefficients) > 8:
+                raise InputError("cp", f"{rec.name}: polynomial Cp of degree {len(cp.coefficients) - 1} > 7")
+            table[i, k.COL_FORM] = k.FORM_POLYNOMIAL
+            table[i, k.COL_C0:k.COL_C0 + len(cp.coefficients)] = cp.coefficients
+        elif isinstance(cp, ConstantHeatCapacity):
+            table[i, k.COL_FORM] = k.FORM_CONSTANT
+            table[i, k.COL_C0] = cp.value
+        else:
+            raise InputError("cp", f"{rec.name}: unsupported heat-capacity form {type(cp).__name__}")
+    table.setflags(write=False)
+    return table
+
+
 def _profiles(records: Sequence[Species], T: np.ndarray, extrapolate: bool) -> tuple[np.ndarray, np.ndarray]:
-    """(H°, S°) arrays of shape T.shape + (n_species,)."""
-    H = np.empty(T.shape + (len(records),))
+    """(H°, S°) arrays of shape T.shape + (n_species,), from the compiled core (ranges checked by the caller)."""
+    from hipeq.data._kernels import profiles_batch
+
+    table = standard_state_table(records)
+    flat = np.ascontiguousarray(T, dtype=float).ravel()
+    H = np.empty((flat.size, len(records)))
     S = np.empty_like(H)
-    with warnings.catch_warnings():
-        if extrapolate:  # _temperature has warned once already
-            warnings.simplefilter("ignore", OutOfRangeWarning)
-        for k, rec in enumerate(records):
-            H[..., k] = rec.Hf + rec.cp.integral(T_REFERENCE, T, extrapolate=extrapolate)
-            S[..., k] = rec.S0 + rec.cp.integral_over_T(T_REFERENCE, T, extrapolate=extrapolate)
-    return H, S
+    profiles_batch(flat, table, H, S)
+    return H.reshape(T.shape + (len(records),)), S.reshape(T.shape + (len(records),))
 
 
 def standard_enthalpies(species: SpeciesList, T: Temperature, *, extrapolate: bool = False) -> np.ndarray:

@@ -1,0 +1,105 @@
+"""Compiled standard-state thermochemistry: H°_i(T), S°_i(T), G°_i(T)/(RT) and Cp°_i(T) for a species table.
+
+Private layer (arrays and scalars in, ``out`` buffers, no exceptions). The table is built and checked by
+:func:`hipeq.data.thermochem.standard_state_table`; one row per species::
+
+    [form, Hf, S0, c0, c1, c2, c3, c4, c5, c6, c7]
+
+``form`` 0: TRC ideal-gas correlation, c0..c7 = a0..a7 (Cp/R = a0 + (a1/T^2) exp(-a2/T) + a3 y^2
++ (a4 - a5/(T - a7)^2) y^8, y = (T - a7)/(T + a6); Thermodynamics Research Center 1994); integrals are the
+analytic ones of ``chemicals.heat_capacity`` (Kabo & Roganov 1994), compiled here as they are.
+``form`` 1: polynomial Cp = sum_k c_k T^k [J/(mol K)], k <= 7.  ``form`` 2: constant Cp = c0 [J/(mol K)].
+
+H°(T) = Hf + ∫_298.15^T Cp dT [J/mol]; S°(T) = S0 + ∫_298.15^T Cp/T dT [J/(mol K)] (Kirchhoff's law).
+"""
+from __future__ import annotations
+
+import math
+
+from chemicals.heat_capacity import TRCCp as _trc_cp_py
+from chemicals.heat_capacity import TRCCp_integral as _trc_h_py
+from chemicals.heat_capacity import TRCCp_integral_over_T as _trc_s_py
+from numba import njit, prange
+
+R = 8.314462618
+T_REF = 298.15
+FORM_TRC, FORM_POLYNOMIAL, FORM_CONSTANT = 0, 1, 2
+COL_FORM, COL_HF, COL_S0, COL_C0 = 0, 1, 2, 3
+N_COLUMNS = 11
+
+_trc_cp = njit(cache=True)(_trc_cp_py)
+_trc_h = njit(cache=True)(_trc_h_py)
+_trc_s = njit(cache=True)(_trc_s_py)
+
+
+@njit(cache=True)
+def _poly_parts(T, row):
+    """(∫Cp dT from 0, ∫Cp/T dT without the ln term's constant) of a polynomial Cp at T."""
+    h = 0.0
+    s = row[COL_C0] * math.log(T)
+    tk = T
+    for k in range(8):
+        c = row[COL_C0 + k]
+        h += c * tk / (k + 1)
+        if k >= 1:
+            s += c * (tk / T) / k
+        tk *= T
+    return h, s
+
+
+@njit(cache=True)
+def _parts(T, row):
+    form = int(row[COL_FORM])
+    if form == FORM_TRC:
+        a = row[COL_C0:COL_C0 + 8]
+        return (_trc_h(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7], 0.0),
+                _trc_s(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7], 0.0))
+    if form == FORM_POLYNOMIAL:
+        return _poly_parts(T, row)
+    c = row[COL_C0]
+    return c * T, c * math.log(T)
+
+
+@njit(cache=True)
+def cp_one(T, row):
+    """Cp°(T) [J/(mol K)] of one table row."""
+    form = int(row[COL_FORM])
+    if form == FORM_TRC:
+        a = row[COL_C0:COL_C0 + 8]
+        return _trc_cp(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7])
+    if form == FORM_POLYNOMIAL:
+        total = 0.0
+        tk = 1.0
+        for k in range(8):
+            total += row[COL_C0 + k] * tk
+            tk *= T
+        return total
+    return row[COL_C0]
+
+
+@njit(cache=True)
+def enthalpy_entropy_into(T, table, h_out, s_out):
+    """H°_i(T) [J/mol] and S°_i(T) [J/(mol K)] of every row of ``table`` at T [K]."""
+    for i in range(table.shape[0]):
+        row = table[i]
+        h1, s1 = _parts(T, row)
+        h0, s0 = _parts(T_REF, row)
+        h_out[i] = row[COL_HF] + h1 - h0
+        s_out[i] = row[COL_S0] + s1 - s0
+
+
+@njit(cache=True)
+def gibbs_rt_into(T, table, out):
+    """G°_i(T)/(R T) = (H°_i - T S°_i)/(R T) [-] of every row at T [K]."""
+    for i in range(table.shape[0]):
+        row = table[i]
+        h1, s1 = _parts(T, row)
+        h0, s0 = _parts(T_REF, row)
+        out[i] = (row[COL_HF] + h1 - h0 - T * (row[COL_S0] + s1 - s0)) / (R * T)
+
+
+@njit(cache=True, parallel=True)
+def profiles_batch(T, table, H, S):
+    """H°[k, i] and S°[k, i] for many temperatures T[k] [K]."""
+    for k in prange(T.shape[0]):
+        enthalpy_entropy_into(T[k], table, H[k], S[k])
