@@ -51,8 +51,9 @@ def _solve(system, case, **conditions):
     return system.equilibrium(feed=case.feed, T=conditions.get("T", case.T), P=conditions.get("P", case.P))
 
 
-def run_case(path: str, json_out: str | None = None, out=sys.stdout) -> int:
+def run_case(path: str, json_out: str | None = None, out=None) -> int:
     """Solve a case file and print the report; returns the process exit code."""
+    out = out or sys.stdout
     from hipeq.interfaces.casefile import load_case
 
     case = load_case(path)
@@ -120,8 +121,9 @@ def _products(system) -> list[str]:
     return names
 
 
-def show_constant(reaction: str, t_from: str, t_to: str, count: int, out=sys.stdout) -> int:
+def show_constant(reaction: str, t_from: str, t_to: str, count: int, out=None) -> int:
     """Print K(T) of a reaction from Cp integrals and the constant-enthalpy van 't Hoff approximation."""
+    out = out or sys.stdout
     from hipeq.data.thermochem import equilibrium_constant
     from hipeq.units import parse_quantity
 
@@ -137,8 +139,9 @@ def show_constant(reaction: str, t_from: str, t_to: str, count: int, out=sys.std
     return 0
 
 
-def show_species(name: str, out=sys.stdout) -> int:
+def show_species(name: str, out=None) -> int:
     """Print one species record with the source of every datum."""
+    out = out or sys.stdout
     from hipeq.data.species import species
 
     s = species(name)

@@ -1,0 +1,56 @@
+"""The hipeq command: demo case end to end, JSON output, exit codes, the caution line."""
+from __future__ import annotations
+
+import io
+import json
+from contextlib import redirect_stderr, redirect_stdout
+from pathlib import Path
+
+import pytest
+
+from hipeq.interfaces.cli import CAUTION, main
+
+DEMO = Path(__file__).resolve().parents[2] / "examples" / "demo_plant.toml"
+
+
+def _run(*argv: str) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    with redirect_stdout(out), redirect_stderr(err):
+        code = main(list(argv))
+    return code, out.getvalue(), err.getvalue()
+
+
+def test_demo_case_runs_and_reports(tmp_path):
+    target = tmp_path / "out.json"
+    code, out, _ = _run("run", str(DEMO), "--json", str(target))
+    assert code == 0
+    assert "standard state: ideal gas at 1 bar" in out
+    assert CAUTION in out
+    report = json.loads(target.read_text())
+    y = report["result"]["y"]
+    assert sum(y.values()) == pytest.approx(1.0, abs=1e-12)
+    # the real-gas answer lies above the ideal-gas one for ammonia synthesis at 215 bar (K_phi < 1):
+    # Le Chatelier plus fugacity correction, common practice in converter design
+    assert report["comparison"]["PR"]["NH3"] > report["comparison"]["ideal"]["NH3"]
+    grid = report["sweep"]["y"]
+    assert len(grid) == 7 and len(grid[0]) == 4
+    # more ammonia at higher pressure and at lower temperature (Le Chatelier)
+    assert all(row[0] < row[-1] for row in grid)
+    assert all(grid[i][2] > grid[i + 1][2] for i in range(6))
+
+
+def test_bad_case_exits_2_and_names_the_key(tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text(DEMO.read_text().replace('pressure = "215 bar"', 'presure = "215 bar"'))
+    code, _, err = _run("run", str(bad))
+    assert code == 2
+    assert "[conditions] presure" in err
+
+
+def test_constant_table_and_species_record():
+    code, out, _ = _run("constant", "N2 + 3 H2 = 2 NH3", "--from", "400 K", "--to", "800 K", "--count", "3")
+    assert code == 0 and "van 't Hoff" in out and out.count("\n") >= 5
+    code, out, _ = _run("species", "methanol")
+    assert code == 0 and "CH3OH" in out and "Tc / K" in out
+    code, _, err = _run("species", "methanl")
+    assert code == 2 and "methanol" in err
