@@ -38,6 +38,11 @@ TC, PC, OMEGA, M_ALPHA, QMASS, VC, ZC = 0, 1, 2, 3, 4, 5, 6
 N_COMP_COLUMNS = 7
 # cubic constants in ``consts``
 DELTA1, DELTA2, OMEGA_A, OMEGA_B = 0, 1, 2, 3
+# Optional extension of ``consts`` (length 4 means none of it): consts[HAS_SHIFT] = 1 switches on a volume
+# translation with c_i [m3/mol] in consts[EXTRA0 : EXTRA0 + nc]; consts[HAS_GROUP_KIJ] = 1 switches on
+# temperature-dependent group-contribution k_ij(T) (E-PPR78) with the pair constants A_ij, B_ij [Pa] in the
+# next two nc*nc blocks (row-major; A_ij = 0 keeps the constant kmat[i, j] for that pair).
+HAS_SHIFT, HAS_GROUP_KIJ, EXTRA0 = 4, 5, 6
 
 ROOT_SINGLE = 0  # one real root above the co-volume
 ROOT_GAS = 1  # three roots; the larger-volume one had the lower Gibbs energy
@@ -95,12 +100,31 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
         dai[i] = dc * alpha + c * dalpha
         bi[i] = ob * R * tc / pc
         dbi[i] = ob * R * (dtc / pc - tc * dpc / (pc * pc))
+    grouped = consts.shape[0] > EXTRA0 and consts[HAS_GROUP_KIJ] == 1.0
+    offset_a = EXTRA0 + nc
+    offset_b = offset_a + nc * nc
     for i in range(nc):
         for j in range(nc):
             g = math.sqrt(ai[i] * ai[j])
-            one_k = 1.0 - kmat[i, j]
-            aij[i, j] = one_k * g
-            daij[i, j] = one_k * (dai[i] * ai[j] + ai[i] * dai[j]) / (2.0 * g)
+            big_a = consts[offset_a + i * nc + j] if grouped else 0.0
+            if big_a != 0.0 and i != j:
+                # E-PPR78 (Jaubert, Qian, Lasala & Privat 2022, Fluid Phase Equilib. 560, 113456) for one-group
+                # molecules: k_ij = [E_ij - (d_i - d_j)^2] / (2 d_i d_j), d_i = sqrt(a_i)/b_i,
+                # E_ij = A_ij (298.15/T)^(B_ij/A_ij - 1); equivalently
+                # a_ij = (a_i b_j/b_i + a_j b_i/b_j - b_i b_j E_ij) / 2.
+                expo = consts[offset_b + i * nc + j] / big_a - 1.0
+                e = big_a * (298.15 / T) ** expo
+                de = -e * expo / T
+                aij[i, j] = 0.5 * (ai[i] * bi[j] / bi[i] + ai[j] * bi[i] / bi[j] - bi[i] * bi[j] * e)
+                daij[i, j] = 0.5 * (dai[i] * bi[j] / bi[i] + ai[i] * dbi[j] / bi[i]
+                                    - ai[i] * bi[j] * dbi[i] / (bi[i] * bi[i])
+                                    + dai[j] * bi[i] / bi[j] + ai[j] * dbi[i] / bi[j]
+                                    - ai[j] * bi[i] * dbi[j] / (bi[j] * bi[j])
+                                    - (dbi[i] * bi[j] + bi[i] * dbi[j]) * e - bi[i] * bi[j] * de)
+            else:
+                one_k = 1.0 - kmat[i, j]
+                aij[i, j] = one_k * g
+                daij[i, j] = one_k * (dai[i] * ai[j] + ai[i] * dai[j]) / (2.0 * g)
 
 
 @njit(cache=True)
@@ -408,6 +432,22 @@ def _pure_cubic(T, P, a, b, d1, d2):
     return z, root, _g_of_root(z, A, B, d1, d2)
 
 
+@njit(cache=True)
+def _shift(T, P, y, consts, out):
+    """Volume translation (Peneloux, Rauzy & Freze 1982, Fluid Phase Equilib. 8, 7): v = v_cubic - c with
+    c = sum_i y_i c_i leaves phase equilibria alone but shifts ln phi_i by -c_i P/(R T) and Z by -c P/(R T).
+    Applies the shift to ``out`` and returns c P/(R T) (0 when the model has no translation)."""
+    if consts.shape[0] <= EXTRA0 or consts[HAS_SHIFT] != 1.0:
+        return 0.0
+    s = P / (R * T)
+    cmix = 0.0
+    for i in range(y.shape[0]):
+        c = consts[EXTRA0 + i]
+        out[i] -= c * s
+        cmix += y[i] * c
+    return cmix * s
+
+
 # ---------------------------------------------------------------------------------------------------------
 # dispatchers (the contract the solvers use)
 # ---------------------------------------------------------------------------------------------------------
@@ -416,7 +456,10 @@ def ln_phi_tp(code, T, P, y, aij, bi, consts, out):
     """ln phi_i of model ``code`` at T [K], P [Pa], mole fractions y; returns (Z, root code)."""
     nc = y.shape[0]
     if code == MODEL_CUBIC:
-        return _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+        z, root = _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+        if root == ROOT_INVALID:
+            return z, root
+        return z - _shift(T, P, y, consts, out), root
     if code == MODEL_VIRIAL:
         z, root, _ = _virial_ln_phi(T, P, y, aij, out)
         return z, root
@@ -442,7 +485,10 @@ def ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac):
     """As ``ln_phi_tp``, also writing jac[i, j] = n d ln phi_i / d n_j at fixed T, P (symmetric)."""
     nc = y.shape[0]
     if code == MODEL_CUBIC:
-        return _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac)
+        z, root = _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac)
+        if root == ROOT_INVALID:
+            return z, root
+        return z - _shift(T, P, y, consts, out), root
     if code == MODEL_VIRIAL:
         z, root, bmix = _virial_ln_phi(T, P, y, aij, out)
         c = P / (R * T)
@@ -472,7 +518,13 @@ def residual_dT_tp(code, T, P, y, aij, bi, daij, dbi, consts, out, dT):
         z, root, F, TF_T = _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT)
         if root == ROOT_INVALID:
             return z, root, 0.0, 0.0
-        return z, root, F + z - 1.0 - math.log(z), -TF_T + z - 1.0
+        g_res = F + z - 1.0 - math.log(z)
+        h_res = -TF_T + z - 1.0
+        shift = _shift(T, P, y, consts, out)
+        if shift != 0.0:
+            for i in range(nc):  # d/dT of -c_i P/(R T)
+                dT[i] += consts[EXTRA0 + i] * P / (R * T * T)
+        return z - shift, root, g_res - shift, h_res - shift
     if code == MODEL_VIRIAL:
         z, root, bmix = _virial_ln_phi(T, P, y, aij, out)
         c = P / (R * T)

@@ -53,6 +53,8 @@ from hipeq.errors import InputError
 from hipeq.models import _kernels as K
 from hipeq.models._states import PARALLEL_MIN_STATES, ROOT_OVERFLOW, finish_states, states_serial
 from hipeq.models.inputs import state_arrays
+from hipeq.models.extensions import (GROUP_KIJ, VOLUME_TRANSLATIONS, eppr78_pairs, extended_consts,
+                                     peneloux_shifts)
 from hipeq.models.kij import KijAssignment, KijInput, assign_kij
 
 __all__ = ["CubicForm", "CUBICS", "MODELS", "CompiledModel", "FugacityResult", "build_model",
@@ -188,8 +190,8 @@ def _check_component(c: _Component) -> None:
 
 def _kij_key(kij: Any) -> Any:
     """A hashable stand-in for ``kij`` (for the build cache); raises TypeError when there is none."""
-    if kij is None:
-        return None
+    if kij is None or isinstance(kij, str):
+        return kij
     if isinstance(kij, Mapping):
         return ("mapping", tuple(sorted((tuple(sorted(k)), float(v)) for k, v in kij.items())))
     array = np.asarray(kij, dtype=float)
@@ -198,7 +200,7 @@ def _kij_key(kij: Any) -> Any:
 
 def build_model(species: Sequence[str | Species], eos: str = "PR", kij: KijInput = None,
                 quantum_hydrogen: bool = False, *, pure_eos: str | None = None,
-                hydrogen_omega: float | None = None) -> CompiledModel:
+                hydrogen_omega: float | None = None, volume_translation: str | None = None) -> CompiledModel:
     """Compile a model for ``species`` (names or :class:`~hipeq.data.species.Species` records).
 
     Args:
@@ -206,11 +208,15 @@ def build_model(species: Sequence[str | Species], eos: str = "PR", kij: KijInput
         eos: one of :data:`MODELS` (case-insensitive).
         kij: k_ij overrides, a symmetric (nc, nc) matrix or {(name_i, name_j): k_ij}; defaults per model in
             :mod:`hipeq.models.kij` (PR/PR78 databank, SRK and virial zero). Not allowed for ideal and
-            lewis-randall (they have none).
+            lewis-randall (they have none). ``kij="e-ppr78"`` (PR, PR78) takes the temperature-dependent
+            group-contribution k_ij(T) of Jaubert et al. (2022) for the pairs the method covers
+            (:mod:`hipeq.models.extensions`); other pairs keep the default and are listed in ``notes``.
         quantum_hydrogen: effective critical constants of Gunn, Chueh & Prausnitz (1966) for H2, He, D2, Ne,
             T_c = T_c0 / (1 + 21.8 K/(M T)), P_c = P_c0 / (1 + 44.2 K/(M T)), M in g/mol.
         pure_eos: the cubic giving the pure-fluid phi of the lewis-randall model (default "PR").
         hydrogen_omega: acentric factor [-] to use for H2 instead of its record's (e.g. 0.0).
+        volume_translation: ``"peneloux"`` (cubics only): Peneloux et al. (1982) volume shift c_i from the
+            Rackett compressibility; shifts ln phi_i by -c_i P/(R T) (:mod:`hipeq.models.extensions`).
 
     Returns a cached, immutable :class:`CompiledModel` (one build per species set and options).
 
@@ -224,7 +230,7 @@ def build_model(species: Sequence[str | Species], eos: str = "PR", kij: KijInput
     if not components:
         raise InputError("species", "must name at least one species")
     options = (_model_name(eos, "eos"), None if pure_eos is None else _model_name(pure_eos, "pure_eos"),
-               bool(quantum_hydrogen), hydrogen_omega)
+               bool(quantum_hydrogen), hydrogen_omega, volume_translation)
     try:
         key = (components, options, _kij_key(kij))
         model = _MODEL_CACHE.get(key)
@@ -243,7 +249,7 @@ _MODEL_CACHE_SIZE = 256
 
 
 def _build(components: tuple[_Component, ...], options: tuple[Any, ...], kij: Any) -> CompiledModel:
-    eos, pure_eos, quantum, hydrogen_omega = options
+    eos, pure_eos, quantum, hydrogen_omega, volume_translation = options
     names = tuple(c.name for c in components)
     if len(set(names)) != len(names):
         raise InputError("species", f"each species may appear once; got {list(names)}")
@@ -255,6 +261,13 @@ def _build(components: tuple[_Component, ...], options: tuple[Any, ...], kij: An
         raise InputError("pure_eos", f"must be a cubic ({', '.join(CUBICS)}), got {pure_eos!r}")
     if kij is not None and eos not in _DEFAULT_KIJ:
         raise InputError("kij", f"model {eos!r} has no interaction parameters; remove kij")
+    group_kij = isinstance(kij, str)
+    if group_kij and (kij.lower() != GROUP_KIJ or eos not in ("PR", "PR78")):
+        raise InputError("kij", f"the only named k_ij method is {GROUP_KIJ!r}, for PR and PR78 "
+                                f"(got {kij!r} with {eos!r}); otherwise give a matrix or a mapping")
+    if volume_translation is not None and (volume_translation not in VOLUME_TRANSLATIONS or eos not in CUBICS):
+        raise InputError("volume_translation", f"must be one of {', '.join(VOLUME_TRANSLATIONS)} with a cubic "
+                                               f"({', '.join(CUBICS)}), got {volume_translation!r} with {eos!r}")
     notes: list[str] = []
     omegas = [c.omega for c in components]
     if hydrogen_omega is not None:
@@ -286,12 +299,29 @@ def _build(components: tuple[_Component, ...], options: tuple[Any, ...], kij: An
     consts = np.zeros(4)
     if form is not None:
         consts[:] = form.delta1, form.delta2, form.omega_a, form.omega_b
+    shifts = group = None
+    if volume_translation is not None:
+        shifts, shift_notes = peneloux_shifts(eos, components)
+        notes.append("Peneloux volume translation: " + "; ".join(shift_notes))
+    if group_kij:
+        big_a, big_b, outside = eppr78_pairs(names)
+        group = (big_a, big_b)
+        notes.append("k_ij(T) from E-PPR78 (Jaubert et al. 2022)"
+                     + (f"; default k_ij kept for {', '.join('-'.join(p) for p in outside)}" if outside else ""))
+        kij = None
+    consts = extended_consts(consts, nc, shifts, group)
     if eos in _DEFAULT_KIJ:
         assignment = assign_kij(components, _DEFAULT_KIJ[eos], kij)
     else:
         empty = np.zeros((nc, nc))
         empty.setflags(write=False)
         assignment = KijAssignment(empty, MappingProxyType({}), MappingProxyType({}), ())
+    if group is not None:
+        covered = {(names[i], names[j]) for i in range(nc) for j in range(i + 1, nc) if group[0][i, j] != 0.0}
+        sources = {p: ("E-PPR78 k_ij(T), Jaubert et al. 2022 (value shown: the unused default)" if p in covered
+                       else s) for p, s in assignment.sources.items()}
+        assignment = KijAssignment(assignment.matrix, assignment.values, MappingProxyType(sources),
+                                   tuple(p for p in assignment.zero_pairs if p not in covered))
     comp.setflags(write=False)
     consts.setflags(write=False)
     return CompiledModel(code=K.MODEL_CUBIC if eos in CUBICS else _CODES[eos], comp=comp, consts=consts,
@@ -406,7 +436,8 @@ def _evaluate(model: CompiledModel, T: Any, P: Any, y: Any) -> FugacityResult:
 
 def fugacity_coefficients(species: Sequence[str | Species], T: Any, P: Any, y: Any, eos: str = "PR",
                           kij: KijInput = None, quantum_hydrogen: bool = False, *, pure_eos: str | None = None,
-                          hydrogen_omega: float | None = None) -> FugacityResult:
+                          hydrogen_omega: float | None = None,
+                          volume_translation: str | None = None) -> FugacityResult:
     """Fugacity coefficients phi_i = f_i / (y_i P) of a gas mixture, with Z and residual properties.
 
     Args:
@@ -414,7 +445,7 @@ def fugacity_coefficients(species: Sequence[str | Species], T: Any, P: Any, y: A
         T: temperature [K], scalar or array, 1..6000 K.
         P: pressure [Pa], scalar or array, 0 < P <= 1e10 Pa.
         y: mole fractions [-], shape (..., nc), >= 0, summing to 1 within 1e-8.
-        eos, kij, quantum_hydrogen, pure_eos, hydrogen_omega: see :func:`build_model`.
+        eos, kij, quantum_hydrogen, pure_eos, hydrogen_omega, volume_translation: see :func:`build_model`.
 
     For the cubics (Michelsen & Mollerup 2007, ch. 3):
     ln phi_i = b_i/b (Z - 1) - ln(Z - B) - A/(B (delta1 - delta2)) (2 sum_j y_j a_ij / a - b_i / b)
@@ -426,5 +457,6 @@ def fugacity_coefficients(species: Sequence[str | Species], T: Any, P: Any, y: A
         InputError: naming the field (T, P, y, eos, kij, ...) and its allowed range; also for states where the
             model has no physical root (truncated virial at high pressure), naming the state.
     """
-    model = build_model(species, eos, kij, quantum_hydrogen, pure_eos=pure_eos, hydrogen_omega=hydrogen_omega)
+    model = build_model(species, eos, kij, quantum_hydrogen, pure_eos=pure_eos, hydrogen_omega=hydrogen_omega,
+                        volume_translation=volume_translation)
     return _evaluate(model, T, P, y)
