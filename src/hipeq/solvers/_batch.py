@@ -1,0 +1,168 @@
+"""The Python face of batch solves: broadcast and check the inputs, call the parallel compiled core, wrap.
+
+Shapes that do not broadcast raise InputError; out-of-range values mark single states INVALID_INPUT (status 6)
+and never raise. The states are handed to ``_driver.solve_many`` in blocks of ``BLOCK`` (so that the user's ln K
+callable and the temporary arrays stay bounded), and inside a block in chunks of consecutive states per thread
+(warm starts run along a chunk).
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from typing import TYPE_CHECKING, Any
+
+import numba
+import numpy as np
+
+from hipeq.errors import InputError
+from hipeq.solvers import _driver as D
+from hipeq.solvers.result import BatchResult
+
+if TYPE_CHECKING:
+    from hipeq.solvers.system import ReactionSystem
+
+BLOCK = 1 << 16
+MAX_CHUNK = 128
+
+
+def _numbers(value: Any, field: str) -> np.ndarray:
+    try:
+        return np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(field, f"must be a number or an array of numbers, got {value!r}") from None
+
+
+def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.ndarray]], list[tuple[int, ...]]]:
+    nc = len(system.species_names)
+    if isinstance(feed, Mapping):
+        if not feed:
+            raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
+        cols: dict[int, np.ndarray] = {}
+        for name, amount in feed.items():
+            j = system._feed_index(name)
+            arr = _numbers(amount, "feed")
+            cols[j] = cols[j] + arr if j in cols else arr
+        items = sorted(cols.items())
+        return items, [a.shape for _, a in items]
+    arr = _numbers(feed, "feed")
+    if arr.ndim == 0 or arr.shape[-1] != nc:
+        raise InputError("feed", f"an array feed needs species along the last axis ({nc}, in the order "
+                                 f"{list(system.species_names)}), got shape {arr.shape}")
+    return [(j, arr[..., j]) for j in range(nc)], [arr.shape[:-1]]
+
+
+class _InvalidReasons(Mapping[int, str]):
+    """Reason text for an invalid state, computed on demand from the inputs kept in the result."""
+
+    def __init__(self, system: ReactionSystem, T: np.ndarray, PV: np.ndarray, N0: np.ndarray, fixed_volume: bool,
+                 invalid: np.ndarray) -> None:
+        self._args = (system, T, PV, N0, fixed_volume)
+        self._invalid = invalid
+
+    def __getitem__(self, k: int) -> str:
+        system, T, PV, N0, fixed_volume = self._args
+        if not self._invalid[k]:
+            raise KeyError(k)
+        reasons = []
+        t = float(T[k])
+        if not (system.T_min <= t <= system.T_max):
+            reasons.append(f"T = {t!r} K is outside {system.T_min:g}-{system.T_max:g} K")
+        v = float(PV[k])
+        if fixed_volume and not (v > 0.0 and math.isfinite(v)):
+            reasons.append(f"V = {v!r} m3 must be finite and > 0")
+        if not fixed_volume and not (0.0 < v <= 1e10):
+            reasons.append(f"P = {v!r} Pa must be finite, > 0 and <= 1e10")
+        row = N0[k]
+        if not np.all(np.isfinite(row)) or np.any(row < 0.0):
+            reasons.append("feed amounts must be finite and >= 0 mol")
+        elif not row.sum() > 0.0:
+            reasons.append("feed amounts are all zero")
+        return "; ".join(reasons)
+
+    def __iter__(self):
+        return iter(np.flatnonzero(self._invalid).tolist())
+
+    def __len__(self) -> int:
+        return int(np.count_nonzero(self._invalid))
+
+
+def neighbour_order(T: np.ndarray, PV: np.ndarray, pats: np.ndarray) -> np.ndarray:
+    """A permutation of the states that puts similar states next to each other, so that warm starts along a
+    chunk start close to the answer: grouped by zero-feed pattern, then a boustrophedon ("snake") path over about
+    sqrt(n) bands of temperature, ordered by ln P (or ln V) within a band, alternating direction."""
+    n = T.size
+    if n < 64:
+        return np.arange(n, dtype=np.int64)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = np.nan_to_num((T - np.nanmin(T)) / max(float(np.ptp(np.nan_to_num(T))), 1e-300))
+        lp = np.nan_to_num(np.log(np.where(PV > 0.0, PV, 1.0)))
+        p = (lp - lp.min()) / max(float(np.ptp(lp)), 1e-300)
+    bands = max(1, int(math.sqrt(n)))
+    band = np.minimum((t * bands).astype(np.int64), bands - 1)
+    p = np.where(band % 2 == 1, -p, p)
+    return np.lexsort((p, band, pats)).astype(np.int64)
+
+
+def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_volume: bool, method: str,
+                scheme: str, tol: float, max_iterations: int) -> BatchResult:
+    """Body of :meth:`ReactionSystem.equilibrium_batch` (see there)."""
+    field = "V" if fixed_volume else "P"
+    T_arr = _numbers(T, "T")
+    PV_arr = _numbers(value, field)
+    cols, feed_shapes = _feed_arrays(system, feed)
+    try:
+        shape = np.broadcast_shapes(T_arr.shape, PV_arr.shape, *feed_shapes)
+    except ValueError:
+        raise InputError("T", f"T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} do not "
+                              "broadcast to one shape of states") from None
+    opts_i, opts_f = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
+    n = int(np.prod(shape)) if shape else 1
+    nc, nr, ne = len(system.species_names), len(system.reactions), len(system.elements)
+    # fresh writeable C-contiguous copies: one compiled signature whatever the caller passed
+    Tf = np.array(np.broadcast_to(T_arr, shape).reshape(n), dtype=np.float64, order="C")
+    PVf = np.array(np.broadcast_to(PV_arr, shape).reshape(n), dtype=np.float64, order="C")
+    N0 = np.zeros((n, nc))
+    for j, arr in cols:
+        N0[:, j] = np.broadcast_to(arr, shape).reshape(n)
+    with np.errstate(invalid="ignore"):
+        valid = (Tf >= system.T_min) & (Tf <= system.T_max) & (PVf > 0.0) & np.isfinite(PVf)
+        if not fixed_volume:
+            valid &= PVf <= 1e10
+        valid &= np.all(np.isfinite(N0), axis=1) & np.all(N0 >= 0.0, axis=1) & (N0.sum(axis=1) > 0.0)
+    keys = (N0 > 0.0) @ system._bits
+    pats = np.zeros(n, dtype=np.int64)
+    if valid.any():
+        unique, inverse = np.unique(keys[valid], return_inverse=True)
+        ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
+        pats[valid] = ids[inverse]
+    species_out = np.empty((n, 2, nc))
+    reactions_out = np.empty((n, 3, nr))
+    element_res = np.empty((n, ne))
+    state = np.empty((n, 3))
+    ints = np.empty((n, 4), dtype=np.int64)
+    liquid = np.empty(n, dtype=np.bool_)
+    valid_u8 = valid.astype(np.uint8)
+    threads = numba.get_num_threads()
+    for a in range(0, n, BLOCK):
+        b = min(n, a + BLOCK)
+        ln_k_user = np.zeros((0, nr))
+        if system._ln_K is not None:
+            ln_k_user = np.zeros((b - a, nr))
+            ok = valid[a:b]
+            if ok.any():
+                ln_k_user[ok] = system._user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
+        chunk = max(1, min(MAX_CHUNK, -(-(b - a) // (4 * threads))))
+        order = neighbour_order(Tf[a:b], PVf[a:b], pats[a:b])
+        D.solve_many(*system._static, *system._stacked, Tf[a:b], PVf[a:b], N0[a:b], pats[a:b], ln_k_user,
+                     valid_u8[a:b], opts_i, opts_f, chunk, order, species_out[a:b], reactions_out[a:b],
+                     element_res[a:b],                     state[a:b], ints[a:b], liquid[a:b])
+    for arr in (species_out, reactions_out, element_res, state, ints, liquid, Tf, PVf, N0):
+        arr.flags.writeable = False
+    reasons = _InvalidReasons(system, Tf, PVf, N0, fixed_volume, ~valid)
+    s = shape
+    return BatchResult(s, Tf.reshape(s), state[:, 0].reshape(s), state[:, 1].reshape(s), state[:, 2].reshape(s),
+                       species_out[:, 0].reshape(s + (nc,)), N0.reshape(s + (nc,)),
+                       species_out[:, 1].reshape(s + (nc,)), reactions_out[:, 0].reshape(s + (nr,)),
+                       reactions_out[:, 1].reshape(s + (nr,)), reactions_out[:, 2].reshape(s + (nr,)),
+                       element_res.reshape(s + (ne,)), ints[:, 1].reshape(s), ints[:, 2].reshape(s),
+                       ints[:, 0].reshape(s), method, scheme, liquid.reshape(s), fixed_volume, reasons, system._info)

@@ -1,0 +1,398 @@
+"""Compiled drivers: one state, or many states in parallel chunks with warm starts.
+
+Private layer: arrays and scalars in, ``out`` arrays, status codes per state; nothing here raises.
+
+Per state: temperature-dependent model parameters (``tdep_into``) and g0_i(T) are computed only when T differs
+from the previous state of the chunk; the start is the previous converged state of the chunk when the pattern of
+zero feeds is the same (a warm start), else an interior point (a cold start); a failed warm-started solve is
+retried cold. At fixed volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's
+volume n_T Z R T / P to the given V (bracketed once the sign of the mismatch has changed; bisection otherwise).
+Work buffers are allocated once per chunk (packed into a few arrays, see hipeq.solvers._common); nothing is
+allocated inside the Newton loops.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit, prange
+
+from hipeq.models._kernels import MODEL_CUBIC, R, ROOT_LIQUID, tdep_into
+from hipeq.solvers._common import (CONVERGED, F_BI, F_DBI, F_G0, F_LNPHI, F_MU, F_N, F_N0_PREV, F_N_PREV, F_Y,
+                                   INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE, PRESSURE_NOT_FOUND, S_LNK,
+                                   S_XI, S_XI_PREV, S_XI_START, adjust_g0, element_residuals, g0_into, make_work)
+from hipeq.solvers._extent import extent_solve
+from hipeq.solvers._gibbs import gibbs_solve
+
+P_STANDARD = 1e5  # [Pa]
+LN_P_STANDARD = math.log(P_STANDARD)
+LIQUID_LIKE_REDUCED_VOLUME = 1.75  # v/b below this is liquid-like (our rule, DEVELOPERS.md)
+P_FLOOR = 1e-2  # [Pa] pressure limits of the sealed-vessel search
+P_CEILING = 1e10  # [Pa]
+MAX_PRESSURE_STEPS = 80
+
+# integer options (opts_i)
+OPT_METHOD, OPT_COUPLED, OPT_FIXED_VOLUME, OPT_MAX_ITER, OPT_USER_LNK, OPT_WARM, OPT_GUESS = range(7)
+N_OPT_I = 7
+# float options (opts_f)
+OPT_TOL, OPT_TOL_GIBBS, OPT_TOL_VOLUME = range(3)
+N_OPT_F = 3
+METHOD_EXTENT = 0
+METHOD_GIBBS = 1
+
+
+@njit(cache=True)
+def _cold_start(n0, active, direction, xdir, nr, F, S):
+    """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps half the largest step keeping n >= 0
+    (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
+    nc = n0.shape[0]
+    eps = np.inf
+    for i in range(nc):
+        if direction[i] < 0.0:
+            eps = min(eps, n0[i] / -direction[i])
+    if not math.isfinite(eps):
+        eps = 0.0
+    eps *= 0.5
+    for i in range(nc):
+        v = n0[i] + eps * direction[i] if active[i] else 0.0
+        if active[i] and not (v > 0.0):
+            v = 1e-300
+        F[F_N, i] = v
+    for r in range(nr):
+        S[S_XI, r] = eps * xdir[r]
+
+
+@njit(cache=True)
+def _start_from_extents(n0, nu, active, F, S):
+    """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
+    nc = n0.shape[0]
+    nr = nu.shape[0]
+    total = 0.0
+    for i in range(nc):
+        v = n0[i]
+        for r in range(nr):
+            v += nu[r, i] * S[S_XI, r]
+        F[F_N, i] = v if active[i] else 0.0
+        total += abs(v)
+    for i in range(nc):
+        if active[i] and not (F[F_N, i] > 1e-14 * total):
+            return False
+    return True
+
+
+@njit(cache=True, inline='always')
+def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
+                       max_iter, F, J, S, SM, M, KV, IV):
+    ln_p = math.log(P) - LN_P_STANDARD
+    if method == METHOD_EXTENT:
+        return extent_solve(code, T, P, ln_p, F[F_G0], W, Zb, neff, active, S[S_XI], J[J_AIJ], F[F_BI], consts,
+                            coupled, tol, max_iter, F, J, S, SM)
+    return gibbs_solve(code, T, P, ln_p, n0, F[F_G0], Q, neq, Nb, n_null, active, J[J_AIJ], F[F_BI], consts,
+                       coupled, tol_g, max_iter, F, J, S, SM, M, KV, IV)
+
+
+@njit(cache=True)
+def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
+                     tol, tol_g, tol_v, max_iter, F, J, S, SM, M, KV, IV):
+    """Outer safeguarded secant on s = ln P for ln(n_T Z R T / P) = ln V. Returns (status, iterations,
+    outer, n_T, Z, root, P)."""
+    nc = n0.shape[0]
+    nr = S.shape[1]
+    s = math.log(P_guess)
+    s_floor = math.log(P_FLOOR)
+    s_ceiling = math.log(P_CEILING)
+    lo = s_floor
+    hi = s_ceiling
+    have_lo = False
+    have_hi = False
+    prev_s = 0.0
+    prev_h = 0.0
+    have_prev = False
+    total = 0
+    ln_v = math.log(V)
+    # remember the last good start so that a failed trial can restart from it (rows F_N_PREV, S_XI_START)
+    for i in range(nc):
+        F[F_N_PREV, i] = F[F_N, i]
+    for r in range(nr):
+        S[S_XI_START, r] = S[S_XI, r]
+    n_t = 0.0
+    z = 1.0
+    root = 0
+    for k in range(MAX_PRESSURE_STEPS):
+        P = math.exp(s)
+        status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
+                                                         active, consts, coupled, tol, tol_g, max_iter, F, J, S,
+                                                         SM, M, KV, IV)
+        total += it
+        if status == NO_PHYSICAL_STATE:
+            # no state of the model at this pressure: treat it as "too high" and step back
+            hi = s
+            have_hi = True
+            for i in range(nc):
+                F[F_N, i] = F[F_N_PREV, i]
+            for r in range(nr):
+                S[S_XI, r] = S[S_XI_START, r]
+            s = 0.5 * (s + lo) if have_lo else s - 1.0
+            have_prev = False
+            if s <= s_floor:
+                return PRESSURE_NOT_FOUND, total, k + 1, n_t, z, root, P
+            continue
+        if status != CONVERGED:
+            return status, total, k + 1, n_t, z, root, P
+        for i in range(nc):
+            F[F_N_PREV, i] = F[F_N, i]
+        for r in range(nr):
+            S[S_XI_START, r] = S[S_XI, r]
+        h = math.log(n_t * z * R * T / P) - ln_v
+        if abs(h) <= tol_v:
+            return CONVERGED, total, k + 1, n_t, z, root, P
+        if h > 0.0:
+            lo = s
+            have_lo = True
+        else:
+            hi = s
+            have_hi = True
+        slope = -1.0
+        if have_prev and s != prev_s:
+            slope = (h - prev_h) / (s - prev_s)
+            if not (slope < -1e-3):
+                slope = -1.0
+        step = -h / slope
+        step = min(2.0, max(-2.0, step))
+        s_new = s + step
+        if (have_lo and s_new <= lo) or (have_hi and s_new >= hi):
+            s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
+        if s_new <= s_floor or s_new >= s_ceiling:
+            return PRESSURE_NOT_FOUND, total, k + 1, n_t, z, root, P
+        prev_s = s
+        prev_h = h
+        have_prev = True
+        s = s_new
+    return PRESSURE_NOT_FOUND, total, MAX_PRESSURE_STEPS, n_t, z, root, math.exp(s)
+
+
+@njit(cache=True)
+def solve_state(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+                T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T, warm, work, out_species, out_reactions,
+                element_res):
+    """Solve one state; writes the per-state outputs and returns (status, iterations, outer, P, V, Z, root,
+    liquid_like). ``out_species`` rows: amounts, ln phi; ``out_reactions`` rows: extents, ln K, residuals.
+    ``new_T``: recompute the temperature-dependent parameters; ``warm``: the work buffers hold a converged
+    previous state of the same pattern (rows F_N_PREV, F_N0_PREV, S_XI_PREV)."""
+    F, J, S, SM, M, KV, IV = work
+    nc = n0.shape[0]
+    nr = nu.shape[0]
+    method = opts_i[OPT_METHOD]
+    coupled = opts_i[OPT_COUPLED] != 0
+    max_iter = opts_i[OPT_MAX_ITER]
+    tol = opts_f[OPT_TOL]
+    tol_g = opts_f[OPT_TOL_GIBBS]
+    g0 = F[F_G0]
+    ln_k = S[S_LNK]
+    if new_T:
+        tdep_into(code, T, comp, consts, kmat, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
+        g0_into(T, u_lo, t_h, table, g0)
+        if opts_i[OPT_USER_LNK] == 0:
+            for r in range(nr):
+                v = 0.0
+                for i in range(nc):
+                    v -= nu[r, i] * g0[i]
+                ln_k[r] = v
+    if opts_i[OPT_USER_LNK] != 0:
+        if not new_T:
+            g0_into(T, u_lo, t_h, table, g0)
+        adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k)
+        for r in range(nr):
+            ln_k[r] = ln_k_user[r]
+    active = pe_active[pat] if method == METHOD_EXTENT else pg_active[pat]
+    n_feed = 0.0
+    for i in range(nc):
+        n_feed += n0[i]
+    # ---- start
+    started = False
+    if opts_i[OPT_GUESS] != 0:
+        if method == METHOD_EXTENT:
+            for r in range(nr):
+                S[S_XI, r] = guess[r]
+            started = _start_from_extents(n0, nu, active, F, S)
+        else:
+            started = True
+            for i in range(nc):
+                v = guess[i] if active[i] else 0.0
+                F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
+    elif warm:
+        same = True
+        prev_total = 0.0
+        for i in range(nc):
+            prev_total += F[F_N0_PREV, i]
+            if F[F_N0_PREV, i] != n0[i]:
+                same = False
+        if same:
+            started = True
+            for i in range(nc):
+                F[F_N, i] = F[F_N_PREV, i]
+            for r in range(nr):
+                S[S_XI, r] = S[S_XI_PREV, r]
+        elif method == METHOD_EXTENT:
+            for r in range(nr):
+                S[S_XI, r] = S[S_XI_PREV, r] * n_feed / prev_total
+            started = _start_from_extents(n0, nu, active, F, S)
+        else:
+            started = True
+            for i in range(nc):
+                v = F[F_N_PREV, i] * n_feed / prev_total
+                F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
+    if not started:
+        _cold_start(n0, active, pe_dir[pat] if method == METHOD_EXTENT else pg_dir[pat], pe_xdir[pat], nr, F, S)
+    # ---- solve
+    P = PV
+    if opts_i[OPT_FIXED_VOLUME] != 0:
+        status, iters, outer, n_t, z, root, P = _solve_at_volume(
+            method, code, T, PV, n_feed * R * T / PV, n0, pe_W[pat], pe_Zb[pat], pe_neff[pat], pg_Q[pat],
+            pg_neq[pat], pg_N[pat], pg_nnull[pat], active, consts, coupled, tol, tol_g, opts_f[OPT_TOL_VOLUME],
+            max_iter, F, J, S, SM, M, KV, IV)
+    else:
+        status, iters, outer, n_t, z, root = _solve_at_pressure(
+            method, code, T, P, n0, pe_W[pat], pe_Zb[pat], pe_neff[pat], pg_Q[pat], pg_neq[pat], pg_N[pat],
+            pg_nnull[pat], active, consts, coupled, tol, tol_g, max_iter, F, J, S, SM, M, KV, IV)
+    # ---- outputs
+    for i in range(nc):
+        out_species[0, i] = F[F_N, i]
+        out_species[1, i] = F[F_LNPHI, i] if root >= 0 else 0.0
+    for r in range(nr):
+        frozen = False
+        for i in range(nc):
+            if nu[r, i] != 0.0 and not active[i]:
+                frozen = True
+        out_reactions[1, r] = ln_k[r]
+        v = 0.0
+        if not frozen and root >= 0:
+            for i in range(nc):
+                v += nu[r, i] * F[F_MU, i]
+        out_reactions[2, r] = v
+        if method == METHOD_EXTENT:
+            out_reactions[0, r] = S[S_XI, r]
+        else:
+            # extents of the Gibbs answer, xi = nu_pinv^T (n - n0) (exact when n - n0 is in the span of nu)
+            v = 0.0
+            for i in range(nc):
+                v += nu_pinv[i, r] * (F[F_N, i] - n0[i])
+            out_reactions[0, r] = v
+    element_residuals(A, F[F_N], n0, element_res)
+    V = n_t * z * R * T / P
+    liquid = root == ROOT_LIQUID
+    if code == MODEL_CUBIC and root >= 0:
+        b = 0.0
+        for i in range(nc):
+            b += F[F_Y, i] * F[F_BI, i]
+        if b > 0.0 and (z * R * T / P) / b < LIQUID_LIKE_REDUCED_VOLUME:
+            liquid = True
+    if status == CONVERGED:
+        for i in range(nc):
+            F[F_N_PREV, i] = F[F_N, i]
+            F[F_N0_PREV, i] = n0[i]
+        for r in range(nr):
+            S[S_XI_PREV, r] = S[S_XI, r]
+    return status, iters, outer, P, V, z, root, liquid
+
+
+@njit(cache=True)
+def solve_one(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+              pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+              T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, out_species, out_reactions, element_res, scalars):
+    """One state (the scalar fast path); a failed start from ``guess`` is retried cold. Returns (status,
+    iterations, outer, root, liquid_like); P, V, Z in ``scalars``."""
+    nc = n0.shape[0]
+    work = make_work(nc, nu.shape[0], max(A.shape[0], pg_Q.shape[1]))
+    no = nc < 0  # run-time booleans, not literals: one compiled solve_state for every caller
+    yes = not no
+    status, iters, outer, P, V, z, root, liquid = solve_state(
+        code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+        pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+        T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, yes, no, work, out_species, out_reactions, element_res)
+    if status != CONVERGED and opts_i[OPT_GUESS] != 0:
+        cold = opts_i.copy()
+        cold[OPT_GUESS] = 0
+        status, iters2, outer2, P, V, z, root, liquid = solve_state(
+            code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+            pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+            T, PV, n0, pat, ln_k_user, guess, cold, opts_f, no, no, work, out_species, out_reactions,
+            element_res)
+        iters += iters2
+        outer += outer2
+    scalars[0] = P
+    scalars[1] = V
+    scalars[2] = z
+    return status, iters, outer, root, liquid
+
+
+@njit(cache=True, parallel=True)
+def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+               pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+               T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, chunk, order,
+               out_species, out_reactions, element_res, out_state, out_ints, liquid):
+    """Many states (T[k], PV[k], N0[k]) in parallel chunks of ``chunk`` consecutive entries of ``order`` (a
+    permutation that puts similar states next to each other), warm-started along a chunk, a failed warm start
+    retried cold. States with valid[k] == 0 are skipped and marked INVALID_INPUT.
+    ``ln_k_user`` has shape (n, nr) or (0, nr). Outputs: out_species (n, 2, nc) amounts and ln phi;
+    out_reactions (n, 3, nr) extents, ln K, residuals; element_res (n, ne); out_state (n, 3) P, V, Z;
+    out_ints (n, 4) status, iterations, outer iterations, root; liquid (n,)."""
+    n = T.shape[0]
+    nc = N0.shape[1]
+    nr = nu.shape[0]
+    n_chunks = (n + chunk - 1) // chunk
+    for c in prange(n_chunks):
+        work = make_work(nc, nr, max(A.shape[0], pg_Q.shape[1]))
+        empty = np.zeros(0)
+        no = c < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
+        last_T = -1.0
+        warm = False
+        last_pat = -1
+        for j in range(c * chunk, min(n, (c + 1) * chunk)):
+            k = order[j]
+            if valid[k] == 0:
+                for i in range(nc):
+                    out_species[k, 0, i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
+                    out_species[k, 1, i] = 0.0
+                out_reactions[k, :, :] = 0.0
+                element_res[k, :] = 0.0
+                fixed_volume = opts_i[OPT_FIXED_VOLUME] != 0
+                ok = math.isfinite(PV[k])
+                out_state[k, 0] = PV[k] if (ok and not fixed_volume) else 0.0
+                out_state[k, 1] = PV[k] if (ok and fixed_volume) else 0.0
+                out_state[k, 2] = 0.0
+                out_ints[k, 0] = INVALID_INPUT
+                out_ints[k, 1] = 0
+                out_ints[k, 2] = 0
+                out_ints[k, 3] = -1
+                liquid[k] = False
+                continue
+            pat = pats[k]
+            user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
+            new_T = T[k] != last_T
+            use_warm = warm and pat == last_pat and opts_i[OPT_WARM] != 0
+            st, it, ou, P, V, z, root, liq = solve_state(
+                code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+                T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, new_T, use_warm, work, out_species[k],
+                out_reactions[k], element_res[k])
+            last_T = T[k]
+            if st != CONVERGED and use_warm:
+                st, it2, ou2, P, V, z, root, liq = solve_state(
+                    code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+                    pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+                    T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, no, no, work, out_species[k],
+                    out_reactions[k], element_res[k])
+                it += it2
+                ou += ou2
+            warm = st == CONVERGED
+            last_pat = pat
+            out_state[k, 0] = P
+            out_state[k, 1] = V
+            out_state[k, 2] = z
+            out_ints[k, 0] = st
+            out_ints[k, 1] = it
+            out_ints[k, 2] = ou
+            out_ints[k, 3] = root
+            liquid[k] = liq

@@ -1,0 +1,215 @@
+"""Compiled extent-of-reaction solver at fixed T and P: Newton on the extents of the independent reactions.
+
+Private layer: arrays and scalars in, work buffers, status codes out; nothing here raises.
+
+Amounts n_i = n0_i + sum_k nu_ki xi_k. At equilibrium every independent reaction k satisfies
+
+    sum_i nu_ki mu_i / (R T) = sum_i nu_ki (ln y_i + ln phi_i) + (sum_i nu_ki) ln(P/P0) - ln K_k = 0,
+
+which is the stationarity of G(xi) = sum_i n_i mu_i at fixed T, P (Smith & Missen 1982, "Chemical Reaction
+Equilibrium Analysis", ch. 4 and 7). The Newton matrix is the Hessian of G/RT in the extents,
+
+    H_kl = sum_i nu_ki nu_li / n_i - dnu_k dnu_l / n_T + sum_ij nu_ki (n_T d ln phi_i / d n_j) nu_lj / n_T,
+
+(Michelsen & Mollerup 2007, "Thermodynamic Models: Fundamentals and Computational Aspects", 2nd ed., ch. 2
+for the last term), so every Newton step is a descent direction of G when H is positive definite; otherwise the
+ideal-gas part (always positive definite for n > 0) is used. Steps are cut to keep 99 % of every amount
+(fraction to the boundary) and then backtracked until G decreases (Armijo rule), or accepted outright when the
+predicted decrease is below the rounding level of G. Amounts are carried and updated directly, not recomputed
+from n0 + nu^T xi, so that species driven to 1e-20 of their feed keep full relative precision.
+
+Reactions that cannot proceed (a species on each side absent and not formable) are removed by solving in the
+reduced extents t, xi = xi_start + Zb t, where the columns of Zb span the extent directions that leave every
+absent species at zero (built in Python per pattern of zero feeds).
+
+Schemes: "coupled" evaluates ln phi and its composition derivatives at every Newton iterate; "nested" freezes
+ln phi in an inner Newton loop (ideal-solution Hessian, no equation-of-state calls) and updates it outside until
+the true residuals meet the tolerance.
+"""
+from __future__ import annotations
+
+from numba import njit
+
+from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY, F_Y,
+                                   F_Y_TRY, FROZEN_PHI, J_JAC, J_JAC_TRY, MAX_ITERATIONS, NO_PHYSICAL_STATE,
+                                   S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, STALLED, WITH_JACOBIAN,
+                                   WITH_PHI, cholesky_solve, evaluate)
+
+FRACTION_TO_BOUNDARY = 0.99
+ARMIJO = 1e-4
+MAX_BACKTRACKS = 40
+CHORD_SWITCH = 1e-7  # coupled scheme: below this residual the last Jacobian of ln phi is reused
+
+
+@njit(cache=True, inline='always')
+def _gradient(W, mu, active, neff, grad):
+    nc = W.shape[0]
+    worst = 0.0
+    for t in range(neff):
+        v = 0.0
+        for i in range(nc):
+            if active[i]:
+                v += W[i, t] * mu[i]
+        grad[t] = v
+        worst = max(worst, abs(v))
+    return worst
+
+
+@njit(cache=True, inline='always')
+def _hessian(W, n, n_t, jac, with_phi, active, neff, H):
+    nc = W.shape[0]
+    for t in range(neff):
+        for u in range(t + 1):
+            v = 0.0
+            st = 0.0
+            su = 0.0
+            for i in range(nc):
+                if active[i]:
+                    v += W[i, t] * W[i, u] / n[i]
+                    st += W[i, t]
+                    su += W[i, u]
+            v -= st * su / n_t
+            if with_phi:
+                q = 0.0
+                for i in range(nc):
+                    if W[i, t] != 0.0:
+                        for j in range(nc):
+                            q += W[i, t] * jac[i, j] * W[j, u]
+                v += q / n_t
+            H[t, u] = v
+            H[u, t] = v
+
+
+@njit(cache=True, inline='always')
+def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, n_t, z, g, views):
+    """One damped Newton step from the current point (n, y, ln phi, mu, jac in ``views``; grad holds the
+    gradient). On success the accepted point replaces the current one and (-1, n_T, Z, root, G) is returned;
+    otherwise a status code. In FROZEN_PHI mode ln phi is left as it is (the nested scheme's inner loop) and the
+    ideal-solution Hessian is used; otherwise the Hessian includes the ln phi derivatives (the ideal part alone
+    if that is not positive definite). In WITH_PHI mode the trial point is evaluated without the derivatives and
+    the previous ones are kept (a chord step near the answer).
+    """
+    n, y, ln_phi, mu, jac, grad, dn, rhs, d, H, L, scale_v, n_try, y_try, ln_phi_try, jac_try, mu_try = views
+    nc = W.shape[0]
+    use_jac = mode != FROZEN_PHI  # the Hessian includes the (current or previous) ln phi derivatives
+    for t in range(neff):
+        rhs[t] = -grad[t]
+    _hessian(W, n, n_t, jac, use_jac, active, neff, H)
+    ok = cholesky_solve(H, rhs, neff, d, L, scale_v)
+    if not ok and use_jac:
+        _hessian(W, n, n_t, jac, False, active, neff, H)
+        ok = cholesky_solve(H, rhs, neff, d, L, scale_v)
+    if not ok:
+        return SINGULAR, n_t, z, 0, g
+    slope = 0.0
+    for t in range(neff):
+        slope += grad[t] * d[t]
+    alpha = 1.0
+    scale = n_t
+    for i in range(nc):
+        if active[i]:
+            v = 0.0
+            for t in range(neff):
+                v += W[i, t] * d[t]
+            dn[i] = v
+            scale += abs(n[i] * mu[i])
+            if v < 0.0 and -v * alpha > FRACTION_TO_BOUNDARY * n[i]:
+                alpha = FRACTION_TO_BOUNDARY * n[i] / -v
+        else:
+            dn[i] = 0.0
+    noise = 1e-13 * scale
+    invalid = 0
+    for _ in range(MAX_BACKTRACKS):
+        for i in range(nc):
+            if active[i]:
+                v = n[i] + alpha * dn[i]
+                n_try[i] = v if v > 0.0 else n[i] * (1.0 - FRACTION_TO_BOUNDARY)
+            else:
+                n_try[i] = 0.0
+        if mode == FROZEN_PHI:
+            for i in range(nc):
+                ln_phi_try[i] = ln_phi[i]
+        nt_t, z_t, root_t, g_t = evaluate(mode, code, T, P, ln_p, n_try, active, g0, aij, bi, consts, y_try,
+                                          ln_phi_try, jac_try, mu_try)
+        if root_t < 0:
+            invalid += 1
+            alpha *= 0.5
+            continue
+        if g_t <= g + ARMIJO * alpha * slope or -alpha * slope <= noise:
+            for i in range(nc):
+                n[i] = n_try[i]
+                y[i] = y_try[i]
+                ln_phi[i] = ln_phi_try[i]
+                mu[i] = mu_try[i]
+            if mode == WITH_JACOBIAN:
+                for i in range(nc):
+                    for j in range(nc):
+                        jac[i, j] = jac_try[i, j]
+            for r in range(Zb.shape[0]):
+                v = 0.0
+                for t in range(neff):
+                    v += Zb[r, t] * d[t]
+                xi[r] += alpha * v
+            return -1, nt_t, z_t, root_t, g_t
+        denom = g_t - g - slope * alpha
+        trial = -slope * alpha * alpha / (2.0 * denom) if denom > 0.0 else 0.5 * alpha
+        alpha = max(0.1 * alpha, min(0.5 * alpha, trial))
+    if invalid == MAX_BACKTRACKS:
+        return NO_PHYSICAL_STATE, n_t, z, -1, g
+    return STALLED, n_t, z, 0, g
+
+
+@njit(cache=True)
+def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, coupled, tol, max_iter,
+                 F, J, S, SM):
+    """Solve the equilibrium conditions in the reduced extents from the start in row F_N (amounts, positive on
+    the active species) and ``xi`` (extents matching them; updated in place).
+
+    W = nu^T Zb (nc x neff). Returns (status, iterations, outer_iterations, n_T, Z, root); on return the rows
+    F_N, F_Y, F_LNPHI and F_MU hold the last iterate, with ln phi evaluated there.
+    """
+    n = F[F_N]
+    y = F[F_Y]
+    ln_phi = F[F_LNPHI]
+    mu = F[F_MU]
+    jac = J[J_JAC]
+    grad = S[S_GRAD]
+    views = (n, y, ln_phi, mu, jac, grad, F[F_DN], S[S_RHS], S[S_D], SM[SM_H], SM[SM_L], S[S_SCALE], F[F_N_TRY],
+             F[F_Y_TRY], F[F_LNPHI_TRY], J[J_JAC_TRY], F[F_MU_TRY])
+    first = WITH_JACOBIAN if coupled else WITH_PHI
+    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu)
+    if root < 0:
+        return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
+    mode = WITH_JACOBIAN if coupled else FROZEN_PHI
+    inner_tol = 0.1 * tol
+    iterations = 0
+    outer = 0
+    inner = False  # nested scheme: inside the loop with ln phi frozen
+    while True:
+        gmax = _gradient(W, mu, active, neff, grad)
+        if inner and (gmax <= inner_tol or iterations >= max_iter):
+            n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
+                                       jac, mu)
+            if root < 0:
+                return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
+            inner = False
+            gmax = _gradient(W, mu, active, neff, grad)
+        if not inner:
+            if gmax <= tol:
+                return CONVERGED, iterations, outer, n_t, z, root
+            if iterations >= max_iter:
+                return MAX_ITERATIONS, iterations, outer, n_t, z, root
+            if not coupled:
+                outer += 1
+                inner = True
+        iterations += 1
+        # near the answer the trial point is evaluated without the composition derivatives: if it converges
+        # (the usual case) they were not needed; if not, the next step reuses the previous ones (a chord step)
+        trial = WITH_PHI if (coupled and gmax < CHORD_SWITCH) else mode
+        status, n_t, z_new, root_new, g = _step(trial, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi,
+                                                consts, n_t, z, g, views)
+        if status >= 0:
+            return status, iterations, outer, n_t, z, root
+        if coupled:
+            z = z_new
+            root = root_new

@@ -1,0 +1,259 @@
+"""Compiled Gibbs-energy minimisation at fixed T and P with element-balance constraints (no reactions needed).
+
+Private layer: arrays and scalars in, work buffers, status codes out; nothing here raises.
+
+Minimise G/RT = sum_i n_i mu_i/RT subject to sum_i a_ei n_i = b_e. At the minimum (Lagrange conditions, the
+element-potential form of White, Johnson & Dantzig 1958, J. Chem. Phys. 28, 751; Smith & Missen 1982,
+"Chemical Reaction Equilibrium Analysis", ch. 6):
+
+    r_i = g0_i + ln(P/P0) + ln n_i - ln n_T + ln phi_i - sum_e a_ei lambda_e = 0   (every species present)
+    e_e = sum_i a_ei n_i - b_e = 0                                                 (every element)
+
+Newton in the logarithms of the amounts, u_i = d ln n_i, with the element potentials lambda and
+v = d n_T / n_T as further unknowns (the RAND linearisation of White et al. 1958 written in log-amounts, with
+the non-ideal term of Michelsen & Mollerup 2007, "Thermodynamic Models", 2nd ed., ch. 12):
+
+    u_i - v + sum_j (n_T d ln phi_i/d n_j) (n_j / n_T) u_j - sum_e a_ei d lambda_e = -r_i
+    sum_i a_ei n_i u_i = -e_e
+    sum_i n_i u_i - n_T v = 0
+
+Amounts are updated multiplicatively, n_i <- n_i exp(alpha u_i), so they stay positive and trace species keep
+full relative precision. The step length alpha caps the change of ln n_i at 2 for species above 1e-3 in mole
+fraction (a trust region, common practice), lets trace species fall freely and lets them rise up to about
+1e-3. Element rows are an orthonormal basis of the row space of the element matrix restricted to the species
+that can be present (built in Python per pattern of zero feeds), so that the system is never rank-deficient.
+
+Schemes: "coupled" includes the ln phi derivatives (full Newton); "nested" freezes ln phi in an inner loop
+(the ideal-solution RAND iteration) and updates it outside.
+"""
+from __future__ import annotations
+
+import math
+
+from numba import njit
+
+from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_MU, F_N, F_N_TRY, F_R, F_Y, F_Y_TRY, FROZEN_PHI,
+                                   IV_IDX, IV_PIV, J_JAC, J_JAC_TRY,
+                                   KV_RHS, KV_SOL, MAX_ITERATIONS, NO_PHYSICAL_STATE, S_B, S_EBAL, S_LAM, S_RHS,
+                                   S_SCALE, SINGULAR, SM_H, SM_L, WITH_JACOBIAN, WITH_PHI, cholesky_solve,
+                                   evaluate, lu_solve)
+
+LOG_STEP_MAJOR = 2.0  # largest change of ln n_i per iteration for species above TRACE in mole fraction
+TRACE = 1e-3
+ELEMENT_TOL = 1e-12  # relative element-balance residual at convergence (in the orthonormal element basis)
+
+
+@njit(cache=True, inline='always')
+def _fit_potentials(Q, neq, n, mu, active, S, SM):
+    """Element potentials by weighted least squares: min sum_i n_i (mu_i - sum_e Q_ei lambda_e)^2."""
+    nc = n.shape[0]
+    H = SM[SM_H]
+    rhs = S[S_RHS]
+    for e in range(neq):
+        v = 0.0
+        for i in range(nc):
+            if active[i]:
+                v += Q[e, i] * n[i] * mu[i]
+        rhs[e] = v
+        for f in range(e + 1):
+            v = 0.0
+            for i in range(nc):
+                if active[i]:
+                    v += Q[e, i] * Q[f, i] * n[i]
+            H[e, f] = v
+            H[f, e] = v
+    if neq == 0:
+        return True
+    return cholesky_solve(H, rhs, neq, S[S_LAM], SM[SM_L], S[S_SCALE])
+
+
+@njit(cache=True, inline='always')
+def _residuals(Q, neq, n, mu, active, r, S, bscale):
+    nc = n.shape[0]
+    lam = S[S_LAM]
+    rmax = 0.0
+    for i in range(nc):
+        if active[i]:
+            v = mu[i]
+            for e in range(neq):
+                v -= Q[e, i] * lam[e]
+            r[i] = v
+            rmax = max(rmax, abs(v))
+        else:
+            r[i] = 0.0
+    emax = 0.0
+    for e in range(neq):
+        v = -S[S_B, e]
+        for i in range(nc):
+            v += Q[e, i] * n[i]
+        S[S_EBAL, e] = v
+        emax = max(emax, abs(v) / bscale)
+    return rmax, emax
+
+
+@njit(cache=True, inline='always')
+def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale):
+    """Assemble and solve the log-amount Newton system; returns (ok, number of active species)."""
+    nc = n.shape[0]
+    idx = IV[IV_IDX]
+    rhs = KV[KV_RHS]
+    m = 0
+    for i in range(nc):
+        if active[i]:
+            idx[m] = i
+            m += 1
+    size = m + neq + 1
+    for a in range(size):
+        for c in range(size):
+            M[a, c] = 0.0
+    for a in range(m):
+        i = idx[a]
+        M[a, a] = 1.0
+        if use_jac:
+            for c in range(m):
+                j = idx[c]
+                M[a, c] += jac[i, j] * n[j] / n_t
+        for e in range(neq):
+            M[a, m + e] = -Q[e, i]
+        M[a, size - 1] = -1.0
+        rhs[a] = -r[i]
+    for e in range(neq):
+        for c in range(m):
+            j = idx[c]
+            M[m + e, c] = Q[e, j] * n[j] / bscale
+        rhs[m + e] = -S[S_EBAL, e] / bscale
+    for c in range(m):
+        M[size - 1, c] = n[idx[c]] / n_t
+    M[size - 1, size - 1] = -1.0
+    rhs[size - 1] = 0.0
+    return lu_solve(M, rhs, size, KV[KV_SOL], IV[IV_PIV]), m
+
+
+@njit(cache=True, inline='always')
+def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
+    """True when G is locally convex along the feasible composition changes (columns of Nb, the null space of
+    the element balances): Nb^T [diag(1/n) - 1 1^T / n_T + Phi / n_T] Nb positive definite, Phi_ij =
+    n_T d ln phi_i / d n_j. Otherwise the step uses the ideal-solution matrix (always positive definite there),
+    as the extent formulation does with its reduced Hessian."""
+    nc = n.shape[0]
+    for a in range(n_null):
+        for b in range(a + 1):
+            v = 0.0
+            sa = 0.0
+            sb = 0.0
+            q = 0.0
+            for i in range(nc):
+                if active[i] and Nb[i, a] != 0.0:
+                    v += Nb[i, a] * Nb[i, b] / n[i]
+                    for j in range(nc):
+                        if active[j]:
+                            q += Nb[i, a] * jac[i, j] * Nb[j, b]
+                if active[i]:
+                    sa += Nb[i, a]
+                    sb += Nb[i, b]
+            v += (q - sa * sb) / n_t
+            H[a, b] = v
+            H[b, a] = v
+        rhs[a] = 1.0
+    if n_null == 0:
+        return True
+    return cholesky_solve(H, rhs, n_null, x, L, scale)
+
+
+@njit(cache=True, inline='always')
+def _update(neq, n, n_t, m, S, KV, IV):
+    """Damped multiplicative update of the amounts and additive update of the element potentials."""
+    idx = IV[IV_IDX]
+    sol = KV[KV_SOL]
+    alpha = 1.0
+    for a in range(m):
+        i = idx[a]
+        u = sol[a]
+        y = n[i] / n_t
+        if u > 0.0:
+            limit = LOG_STEP_MAJOR if y > TRACE else LOG_STEP_MAJOR + math.log(TRACE / y)
+        elif y > TRACE:
+            limit = LOG_STEP_MAJOR
+        else:
+            continue
+        if abs(u) * alpha > limit:
+            alpha = limit / abs(u)
+    for a in range(m):
+        i = idx[a]
+        step = alpha * sol[a]
+        if step < -200.0:
+            step = -200.0
+        n[i] = n[i] * math.exp(step)
+        if not (n[i] > 0.0):
+            n[i] = 1e-300
+    for e in range(neq):
+        S[S_LAM, e] += alpha * sol[m + e]
+    return alpha
+
+
+@njit(cache=True)
+def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
+                F, J, S, SM, M, KV, IV):
+    """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
+
+    Q (neq rows used) is an orthonormal basis of the element balances on the active species, the first n_null
+    columns of Nb a basis of their null space. Returns
+    (status, iterations, outer_iterations, n_T, Z, root); rows F_N, F_Y, F_LNPHI, F_MU hold the last iterate.
+    """
+    nc = n0.shape[0]
+    bscale = 0.0
+    for i in range(nc):
+        bscale += n0[i]
+    for e in range(neq):
+        v = 0.0
+        for i in range(nc):
+            v += Q[e, i] * n0[i]
+        S[S_B, e] = v
+    n = F[F_N]
+    y = F[F_Y]
+    ln_phi = F[F_LNPHI]
+    mu = F[F_MU]
+    r = F[F_R]
+    jac = J[J_JAC]
+    first = WITH_JACOBIAN if coupled else WITH_PHI
+    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu)
+    if root < 0:
+        return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
+    if not _fit_potentials(Q, neq, n, mu, active, S, SM):
+        return SINGULAR, 0, 0, n_t, z, root
+    mode = WITH_JACOBIAN if coupled else FROZEN_PHI
+    inner_tol = 0.1 * tol
+    iterations = 0
+    outer = 0
+    inner = False  # nested scheme: inside the loop with ln phi frozen (the ideal-solution RAND iteration)
+    while True:
+        rmax, emax = _residuals(Q, neq, n, mu, active, r, S, bscale)
+        if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
+            n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
+                                       jac, mu)
+            if root < 0:
+                return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
+            inner = False
+            rmax, emax = _residuals(Q, neq, n, mu, active, r, S, bscale)
+        if not inner:
+            if rmax <= tol and emax <= ELEMENT_TOL:
+                return CONVERGED, iterations, outer, n_t, z, root
+            if iterations >= max_iter:
+                return MAX_ITERATIONS, iterations, outer, n_t, z, root
+            if not coupled:
+                outer += 1
+                inner = True
+        use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, J[J_JAC_TRY], M, F[F_DN],
+                                              F[F_Y_TRY], F[F_N_TRY])
+        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale)
+        if not ok:
+            return SINGULAR, iterations, outer, n_t, z, root
+        _update(neq, n, n_t, m, S, KV, IV)
+        iterations += 1
+        n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
+                                           mu)
+        if coupled:
+            z = z_new
+            root = root_new
+            if root < 0:
+                return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root

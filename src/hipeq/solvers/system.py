@@ -1,0 +1,406 @@
+"""ReactionSystem: chemical equilibrium of a gas mixture at fixed T and P, or in a sealed vessel at fixed T and V.
+
+>>> import hipeq
+>>> system = hipeq.ReactionSystem(["N2", "H2", "NH3", "Ar"], eos="PR")
+>>> result = system.equilibrium(feed={"N2": 1, "H2": 3, "Ar": 0.05}, T=723.15, P=300e5)
+>>> result.converged, round(result.y["NH3"], 3)
+(True, 0.333)
+
+Formulations (details in docs/solvers.md):
+
+- ``method="extent"``: Newton on the extents of the independent reactions, every condition
+  sum_i nu_ki (ln y_i + ln phi_i + ln(P/P0)) = ln K_k (Smith & Missen 1982, "Chemical Reaction Equilibrium
+  Analysis", ch. 4 and 7); ``scheme="coupled"`` (analytic Jacobian with d ln phi / d n, Michelsen & Mollerup
+  2007, "Thermodynamic Models", 2nd ed., ch. 2) or ``scheme="nested"`` (phi frozen inside, updated outside).
+- ``method="gibbs"``: minimisation of G over the species list with element balances (element potentials:
+  White, Johnson & Dantzig 1958, J. Chem. Phys. 28, 751; Smith & Missen 1982, ch. 6; Michelsen & Mollerup 2007,
+  ch. 12 for the non-ideal part). Needs no reactions.
+- ``V=`` instead of ``P=``: sealed vessel; the pressure is found so that n_T Z R T / P = V.
+
+Equilibrium is a thermodynamic limit, not a design basis for pressure equipment; follow local codes and
+licensed engineering practice.
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Mapping, Sequence
+from types import MappingProxyType
+from typing import Any
+
+import numpy as np
+
+from hipeq.data.reactions import Reaction, check_independent, element_matrix, independent_reactions
+from hipeq.data.reactions import stoichiometric_matrix
+from hipeq.data.species import Species
+from hipeq.data.species import species as lookup_species
+from hipeq.errors import InputError, NotConvergedError, UnknownSpeciesError
+from hipeq.solvers import _driver as D
+from hipeq.solvers._patterns import Pattern, analyse, null_space
+from hipeq.solvers._tables import g0_table
+from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo
+
+__all__ = ["ReactionSystem"]
+
+P_MAX = 1e10  # [Pa] upper limit of P (the same sanity limit as the fugacity models)
+METHODS = ("extent", "gibbs")
+SCHEMES = ("coupled", "nested")
+DEFAULT_TOL = 1e-11
+VOLUME_TOL = 1e-12  # |ln(V_equilibrium / V)| at convergence of a sealed-vessel solve
+MAX_SPECIES = 62  # the zero-feed pattern is kept in the bits of one int64
+
+
+class ReactionSystem:
+    """A set of gas species, their independent reactions and a fugacity model, ready for equilibrium solves.
+
+    Args:
+        species: species names (identifiers, common names, formulas or CAS numbers) or Species records.
+        reactions: reactions as text (``"N2 + 3 H2 = 2 NH3"``) or :class:`~hipeq.data.reactions.Reaction`; None
+            derives a complete independent set from the element balances. A dependent set is reduced to an
+            independent subset, keeping the given order (``dropped_reactions`` says which went and why).
+        eos: fugacity model (``"PR"``, ``"SRK"``, ``"PR78"``, ``"virial"``, ``"lewis-randall"``, ``"ideal"``).
+        kij: binary interaction parameters (see :func:`hipeq.models.eos.build_model`).
+        quantum_hydrogen: effective critical constants for H2 (Gunn, Chueh & Prausnitz 1966).
+        ln_K: optional override of the equilibrium constants: a callable taking temperatures [K] (1-D array)
+            and returning ln K of ``reactions`` (the kept, independent ones, standard state ideal gas at 1 bar)
+            with shape (n, n_reactions). Gibbs minimisation then uses the least change of the species' standard
+            Gibbs energies that reproduces these ln K.
+
+    Raises InputError naming the field (species, reactions, eos, kij, ln_K), UnknownSpeciesError.
+    """
+
+    def __init__(self, species: Sequence[str | Species], reactions: Sequence[str | Reaction] | None = None,
+                 eos: str = "PR", kij: Any = None, quantum_hydrogen: bool = False, *,
+                 ln_K: Callable[[np.ndarray], Any] | None = None) -> None:
+        from hipeq.models import build_model
+
+        if isinstance(species, (str, Species)) or not isinstance(species, Sequence) or not species:
+            raise InputError("species", f"must be a non-empty list of species names, got {species!r}")
+        records = tuple(lookup_species(s) for s in species)
+        names = tuple(r.name for r in records)
+        if len(set(names)) != len(names):
+            twice = sorted({n for n in names if names.count(n) > 1})
+            raise InputError("species", f"each species may appear once; repeated: {', '.join(twice)}")
+        if len(names) > MAX_SPECIES:
+            raise InputError("species", f"at most {MAX_SPECIES} species, got {len(names)}")
+        if ln_K is not None and not callable(ln_K):
+            raise InputError("ln_K", f"must be a callable T -> ln K array, got {ln_K!r}")
+        self.species_names: tuple[str, ...] = names
+        self.records: tuple[Species, ...] = records
+        self._index = {n: k for k, n in enumerate(names)}
+        notes: list[str] = []
+        self.reactions, self.dropped_reactions = self._reactions(reactions, names, notes)
+        nc, nr = len(names), len(self.reactions)
+        self.nu = stoichiometric_matrix(self.reactions, names) if nr else np.zeros((0, nc))
+        self.elements, self.element_matrix = element_matrix(names)
+        self.model = build_model(names, eos, kij, quantum_hydrogen)
+        self.table = g0_table(records)
+        self.T_min, self.T_max = self.table.t_lo, self.table.t_hi
+        self._element_null = null_space(self.element_matrix)
+        rank = np.linalg.matrix_rank(self.nu) if nr else 0
+        if rank < self._element_null.shape[1]:
+            notes.append(f"the {nr} reactions span {rank} of the {self._element_null.shape[1]} independent "
+                         "composition changes the element balances allow; method='gibbs' may reach species by "
+                         "routes outside this reaction list")
+        notes.extend(self.model.notes)
+        self._ln_K = ln_K
+        self._nu_pinv = np.ascontiguousarray(np.linalg.pinv(self.nu)) if nr else np.zeros((nc, 0))
+        self._max_nu = float(np.max(np.sum(np.abs(self.nu), axis=1))) if nr else 1.0
+        m = self.model
+        self._static = (int(m.code), np.array(m.comp), np.array(m.consts), np.array(m.kmat), self.table.u_lo,
+                        self.table.h, np.array(self.table.values), np.ascontiguousarray(self.nu), self._nu_pinv,
+                        np.ascontiguousarray(self.element_matrix))
+        self._patterns: list[Pattern] = []
+        self._pattern_ids: dict[int, int] = {}
+        self._stacked: tuple[np.ndarray, ...] = ()
+        self._options: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
+        self._frozen_cache: dict[tuple[int, str], tuple[str, ...]] = {}
+        self._bits = np.array([1 << k for k in range(nc)], dtype=np.int64)
+        self.notes = tuple(notes)
+        k_source = ("user ln_K override" if ln_K is not None else
+                    "ln K = -sum_i nu_i G0_i(T)/(R T) from hipeq.data.thermochem (Cp integrals), tabulated in "
+                    f"ln T with quintic Hermite interpolation (max deviation {self.table.max_error:.1e})")
+        self._info = _SystemInfo(
+            species=names, index=MappingProxyType(dict(self._index)),
+            reactions=tuple(str(r) for r in self.reactions), nu=self.nu, elements=tuple(self.elements),
+            element_index=MappingProxyType({e: k for k, e in enumerate(self.elements)}), eos=m.eos, kij=m.kij,
+            kij_sources=m.kij_sources, zero_kij_pairs=m.zero_kij_pairs,
+            data_sources=MappingProxyType({r.name: MappingProxyType(dict(r.sources)) for r in records}),
+            notes=self.notes, k_source=k_source)
+
+    # ------------------------------------------------------------------------------------------------------
+    @staticmethod
+    def _reactions(reactions: Sequence[str | Reaction] | None, names: tuple[str, ...],
+                   notes: list[str]) -> tuple[tuple[Reaction, ...], tuple[tuple[Reaction, str], ...]]:
+        if reactions is None:
+            return tuple(independent_reactions(names)), ()
+        if isinstance(reactions, (str, Reaction)) or not isinstance(reactions, Sequence):
+            raise InputError("reactions", f"must be a list of reactions (text or Reaction), got {reactions!r}")
+        parsed = []
+        for item in reactions:
+            rxn = item if isinstance(item, Reaction) else Reaction.parse(item)
+            missing = [s for s in rxn.species if s not in names]
+            if missing:
+                raise InputError("reactions", f"'{rxn}' involves {', '.join(missing)}, not in the species list "
+                                              f"{list(names)}")
+            parsed.append(rxn)
+        if not parsed:
+            return (), ()
+        check = check_independent(parsed)
+        kept = tuple(parsed[k] for k in check.independent)
+        dropped = []
+        for d in check.dependent:
+            combo = " + ".join(f"{c:g} x '{parsed[k]}'" for k, c in check.combinations[d].items())
+            dropped.append((parsed[d], combo))
+            notes.append(f"dropped dependent reaction '{parsed[d]}' = {combo}")
+        return kept, tuple(dropped)
+
+    def _pattern(self, key: int) -> int:
+        pid = self._pattern_ids.get(key)
+        if pid is None:
+            pattern = analyse(key, len(self.species_names), self.nu, self._element_null, self.element_matrix)
+            pid = len(self._patterns)
+            self._patterns.append(pattern)
+            self._pattern_ids[key] = pid
+            ps = self._patterns
+            self._stacked = (np.array([p.ext_active for p in ps]), np.array([p.Zb for p in ps]),
+                             np.array([p.W for p in ps]), np.array([p.neff for p in ps], dtype=np.int64),
+                             np.array([p.ext_dir for p in ps]), np.array([p.ext_xdir for p in ps]),
+                             np.array([p.gibbs_active for p in ps]), np.array([p.Q for p in ps]),
+                             np.array([p.neq for p in ps], dtype=np.int64), np.array([p.gibbs_dir for p in ps]),
+                             np.array([p.gibbs_null for p in ps]), np.array([p.n_null for p in ps], dtype=np.int64))
+        return pid
+
+    def _frozen(self, pat: int, method: str) -> tuple[str, ...]:
+        """Reactions that cannot proceed for pattern ``pat`` (a species absent and not formable), as text."""
+        key = (pat, method)
+        found = self._frozen_cache.get(key)
+        if found is None:
+            p = self._patterns[pat]
+            active = p.ext_active if method == "extent" else p.gibbs_active
+            found = tuple(str(r) for r, row in zip(self.reactions, self.nu) if np.any(row[~active] != 0.0))
+            self._frozen_cache[key] = found
+        return found
+
+    def _opts(self, method: str, scheme: str, tol: float, max_iterations: int, fixed_volume: bool,
+              guess: bool) -> tuple[np.ndarray, np.ndarray]:
+        key = (method, scheme, tol, max_iterations, fixed_volume, guess)
+        found = self._options.get(key)
+        if found is not None:
+            return found
+        if method not in METHODS:
+            raise InputError("method", f"must be one of {', '.join(map(repr, METHODS))}, got {method!r}")
+        if scheme not in SCHEMES:
+            raise InputError("scheme", f"must be one of {', '.join(map(repr, SCHEMES))}, got {scheme!r}")
+        if not (isinstance(tol, (int, float)) and 1e-14 <= tol <= 1e-3):
+            raise InputError("tol", f"must be a number in [1e-14, 1e-3], got {tol!r}")
+        if isinstance(max_iterations, bool) or not isinstance(max_iterations, (int, np.integer)) or not (
+                1 <= max_iterations <= 100_000):
+            raise InputError("max_iterations", f"must be an integer in [1, 100000], got {max_iterations!r}")
+        opts_i = np.zeros(D.N_OPT_I, dtype=np.int64)
+        opts_i[D.OPT_METHOD] = D.METHOD_EXTENT if method == "extent" else D.METHOD_GIBBS
+        opts_i[D.OPT_COUPLED] = scheme == "coupled"
+        opts_i[D.OPT_FIXED_VOLUME] = fixed_volume
+        opts_i[D.OPT_MAX_ITER] = max_iterations
+        opts_i[D.OPT_USER_LNK] = self._ln_K is not None
+        opts_i[D.OPT_WARM] = 1
+        opts_i[D.OPT_GUESS] = guess
+        opts_f = np.array([tol, tol / max(1.0, self._max_nu), VOLUME_TOL])
+        self._options[key] = (opts_i, opts_f)
+        return opts_i, opts_f
+
+    # ------------------------------------------------------------------------------------------------------
+    def _feed_index(self, name: Any) -> int:
+        j = self._index.get(name)
+        if j is not None:
+            return j
+        if not isinstance(name, (str, Species)):
+            raise InputError("feed", f"keys must be species names, got {name!r}")
+        try:
+            ident = lookup_species(name).name
+        except UnknownSpeciesError as err:
+            raise InputError("feed", f"{name!r} is not a known species ({err}); this system has "
+                                     f"{', '.join(self.species_names)}") from None
+        j = self._index.get(ident)
+        if j is None:
+            raise InputError("feed", f"{ident!r} is not in this system (species: {', '.join(self.species_names)})")
+        return j
+
+    def _check_T(self, T: float) -> None:
+        if not (self.T_min <= T <= self.T_max):
+            lo, hi = self.table.limiting
+            raise InputError("T", f"must be within {self.T_min:g}-{self.T_max:g} K (the heat-capacity ranges of "
+                                  f"the species; limited by {lo} below and {hi} above), got {T!r}")
+
+    def _check_PV(self, P: Any, V: Any) -> tuple[Any, bool]:
+        if (P is None) == (V is None):
+            raise InputError("P", "give exactly one of P= [Pa] (fixed pressure) or V= [m3] (sealed vessel)"
+                             + (", not both" if P is not None else ""))
+        return (P, False) if V is None else (V, True)
+
+    def equilibrium(self, feed: Mapping[str, Any] | Any, T: Any, P: Any = None, V: Any = None, *,
+                    method: str = "extent", scheme: str = "coupled", tol: float = DEFAULT_TOL,
+                    max_iterations: int = 100, initial_guess: Mapping[str, float] | EquilibriumResult | None = None,
+                    raise_on_failure: bool = False) -> EquilibriumResult | BatchResult:
+        """Equilibrium composition of ``feed`` at temperature T and pressure P, or in a sealed vessel of volume V.
+
+        Args:
+            feed: amounts [mol] per species, {name: amount}; or an array with species along the last axis in
+                the order of ``species_names``. Values may be arrays (a batch).
+            T: temperature [K], within the species' heat-capacity range (``T_min``-``T_max``).
+            P: pressure [Pa], 0 < P <= 1e10 (fixed pressure). Exactly one of P and V.
+            V: total volume [m3], > 0 (sealed vessel: the pressure follows from the equation of state).
+            method: "extent" (Newton on the extents) or "gibbs" (Gibbs minimisation with element balances).
+            scheme: "coupled" (full Newton with d ln phi/d n) or "nested" (phi frozen in an inner loop).
+            tol: tolerance on every equilibrium condition, |sum_i nu_ki mu_i/RT| <= tol [-].
+            max_iterations: Newton iterations allowed (per pressure step in a sealed vessel).
+            initial_guess: amounts {name: mol} or a previous EquilibriumResult to start from (scalar calls).
+            raise_on_failure: raise NotConvergedError (with ``.result``) instead of returning a result with
+                ``converged == False``. Default False: check ``result.converged``. Scalar calls only; a batch
+                never raises for one bad state (it reports a status per state).
+
+        The conditions solved are sum_i nu_ki [g0_i + ln(P/P0) + ln y_i + ln phi_i] = 0 for every independent
+        reaction k (extent) or the equivalent element-potential conditions (gibbs), P0 = 1 bar.
+
+        Returns an :class:`EquilibriumResult` when T, P (or V) and every feed amount are scalars, else a
+        :class:`BatchResult` over their broadcast shape (also see :meth:`equilibrium_batch`).
+        """
+        value, fixed_volume = self._check_PV(P, V)
+        scalar = isinstance(T, (int, float)) and isinstance(value, (int, float))
+        if scalar and (type(feed) is dict or isinstance(feed, Mapping)):
+            scalar = all(isinstance(v, (int, float)) for v in feed.values())
+        elif scalar:
+            scalar = np.ndim(feed) == 1
+        if not scalar:
+            if initial_guess is not None:
+                raise InputError("initial_guess", "is for scalar calls; a batch warm-starts each state from its "
+                                                  "neighbour")
+            return self.equilibrium_batch(feed, T, P, V, method=method, scheme=scheme, tol=tol,
+                                          max_iterations=max_iterations)
+        return self._solve_scalar(feed, float(T), float(value), fixed_volume, method, scheme, tol, max_iterations,
+                                  initial_guess, raise_on_failure)
+
+    def _feed_vector(self, feed: Any) -> tuple[np.ndarray, int]:
+        nc = len(self.species_names)
+        n0 = np.zeros(nc)
+        key = 0
+        if type(feed) is dict or isinstance(feed, Mapping):
+            if not feed:
+                raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
+            for name, amount in feed.items():
+                j = self._feed_index(name)
+                try:
+                    v = float(amount)
+                except (TypeError, ValueError):
+                    raise InputError("feed", f"amount of {name!r} must be a number [mol], got {amount!r}") from None
+                if not (v >= 0.0 and math.isfinite(v)):
+                    raise InputError("feed", f"amount of {name!r} must be finite and >= 0 mol, got {amount!r}")
+                n0[j] += v
+        else:
+            try:
+                arr = np.asarray(feed, dtype=float)
+            except (TypeError, ValueError):
+                raise InputError("feed", f"must map species to amounts [mol], got {feed!r}") from None
+            if arr.shape != (nc,):
+                raise InputError("feed", f"an array feed needs shape ({nc},) in the order {list(self.species_names)}"
+                                         f", got shape {arr.shape}")
+            if not (np.all(np.isfinite(arr)) and np.all(arr >= 0.0)):
+                raise InputError("feed", f"amounts must be finite and >= 0 mol, got {arr.tolist()}")
+            n0[:] = arr
+        for j in range(nc):
+            if n0[j] > 0.0:
+                key |= 1 << j
+        if key == 0:
+            raise InputError("feed", "all amounts are zero; give at least one positive amount [mol]")
+        return n0, key
+
+    def _user_ln_k(self, T: np.ndarray) -> np.ndarray:
+        nr = len(self.reactions)
+        try:
+            values = np.asarray(self._ln_K(T), dtype=float)
+        except InputError:
+            raise
+        except Exception as err:  # the user's callable failed: say so, with its error
+            raise InputError("ln_K", f"the ln_K callable failed at T = {T[:3].tolist()}...: {err!r}") from err
+        if values.shape == T.shape and nr == 1:
+            values = values[:, None]
+        if values.shape != (T.size, nr):
+            raise InputError("ln_K", f"must return shape (n_T, {nr}) for T of shape ({T.size},), "
+                                     f"got {values.shape}")
+        if not np.all(np.isfinite(values)):
+            raise InputError("ln_K", "returned non-finite values")
+        return np.ascontiguousarray(values)
+
+    def _solve_scalar(self, feed: Any, T: float, value: float, fixed_volume: bool, method: str, scheme: str,
+                      tol: float, max_iterations: int, initial_guess: Any, raise_on_failure: bool
+                      ) -> EquilibriumResult:
+        self._check_T(T)
+        if fixed_volume:
+            if not (value > 0.0 and math.isfinite(value)):
+                raise InputError("V", f"must be finite and > 0 m3, got {value!r}")
+        elif not (0.0 < value <= P_MAX):
+            raise InputError("P", f"must be finite, > 0 Pa and <= {P_MAX:g} Pa, got {value!r}")
+        n0, key = self._feed_vector(feed)
+        pat = self._pattern(key)
+        guess = self._guess(initial_guess, n0, method)
+        opts_i, opts_f = self._opts(method, scheme, tol, max_iterations, fixed_volume, guess is not None)
+        nc, nr = n0.size, len(self.reactions)
+        ne = len(self.elements)
+        ln_k_user = self._user_ln_k(np.array([T]))[0] if self._ln_K is not None else _EMPTY
+        buf = np.empty(2 * nc + 3 * nr + ne + 3)
+        species_out = buf[:2 * nc].reshape(2, nc)
+        reactions_out = buf[2 * nc:2 * nc + 3 * nr].reshape(3, nr)
+        eres = buf[2 * nc + 3 * nr:2 * nc + 3 * nr + ne]
+        scalars = buf[2 * nc + 3 * nr + ne:]
+        status, iters, outer, root, liquid = D.solve_one(
+            *self._static, *self._stacked, T, value, n0, pat, ln_k_user, _EMPTY if guess is None else guess,
+            opts_i, opts_f, species_out, reactions_out, eres, scalars)
+        for arr in (species_out, reactions_out, eres, n0):
+            arr.flags.writeable = False
+        amounts, ln_phis = species_out
+        extents, ln_k, residuals = reactions_out
+        frozen = self._frozen(pat, method)
+        result = EquilibriumResult(T, float(scalars[0]), float(scalars[1]), float(scalars[2]), amounts, n0,
+                                   ln_phis, extents, ln_k, residuals, eres, int(iters), int(outer), int(status),
+                                   method, scheme, bool(liquid), fixed_volume, frozen, self._info)
+        if status != 0 and raise_on_failure:
+            raise NotConvergedError(result.message, result)
+        return result
+
+    def _guess(self, initial_guess: Any, n0: np.ndarray, method: str) -> np.ndarray | None:
+        if initial_guess is None:
+            return None
+        if isinstance(initial_guess, EquilibriumResult):
+            if initial_guess.species != self.species_names:
+                raise InputError("initial_guess", "comes from a result of a different species list")
+            amounts = np.array(initial_guess.amounts.array, dtype=float)
+        elif isinstance(initial_guess, Mapping):
+            amounts = np.zeros(len(self.species_names))
+            for name, v in initial_guess.items():
+                amounts[self._feed_index(name)] = float(v)
+        else:
+            raise InputError("initial_guess", f"must map species to amounts [mol] or be an EquilibriumResult, "
+                                              f"got {initial_guess!r}")
+        if not (np.all(np.isfinite(amounts)) and np.all(amounts >= 0.0) and amounts.sum() > 0.0):
+            raise InputError("initial_guess", "amounts must be finite, >= 0 mol and not all zero")
+        if method == "extent":
+            return np.ascontiguousarray(self._nu_pinv.T @ (amounts - n0))
+        return amounts
+
+    # ------------------------------------------------------------------------------------------------------
+    def equilibrium_batch(self, feed: Mapping[str, Any] | Any, T: Any, P: Any = None, V: Any = None, *,
+                          method: str = "extent", scheme: str = "coupled", tol: float = DEFAULT_TOL,
+                          max_iterations: int = 100) -> BatchResult:
+        """Equilibrium of many states at once in the compiled core; always returns a :class:`BatchResult`.
+
+        T [K], P [Pa] or V [m3] and the feed amounts [mol] (a mapping of scalars or arrays, or an array with
+        species along the last axis) are broadcast together. Badly shaped input raises InputError; a state with
+        out-of-range values gets status 6 (INVALID_INPUT) instead, and a state that fails to converge its own
+        status: a batch never raises for one bad state. Other arguments as in :meth:`equilibrium`.
+        """
+        from hipeq.solvers._batch import solve_batch
+
+        value, fixed_volume = self._check_PV(P, V)
+        return solve_batch(self, feed, T, value, fixed_volume, method, scheme, tol, max_iterations)
+
+
+_EMPTY = np.zeros(0)
