@@ -60,6 +60,10 @@ class ReactionSystem:
         eos: fugacity model (``"PR"``, ``"SRK"``, ``"PR78"``, ``"virial"``, ``"lewis-randall"``, ``"ideal"``).
         kij: binary interaction parameters (see :func:`hipeq.models.eos.build_model`).
         quantum_hydrogen: effective critical constants for H2 (Gunn, Chueh & Prausnitz 1966).
+        hydrogen_omega, volume_translation, pure_eos: further model options, passed to
+            :func:`hipeq.models.eos.build_model` (e.g. ``eos="PR78", kij="e-ppr78",
+            volume_translation="peneloux"``, the closest cubic to measured ammonia equilibria up to 1000 atm;
+            docs/ammonia_validation.md).
         ln_K: optional override of the equilibrium constants: a callable taking temperatures [K] (1-D array)
             and returning ln K of ``reactions`` (the kept, independent ones, standard state ideal gas at 1 bar)
             with shape (n, n_reactions). Gibbs minimisation then uses the least change of the species' standard
@@ -70,7 +74,8 @@ class ReactionSystem:
 
     def __init__(self, species: Sequence[str | Species], reactions: Sequence[str | Reaction] | None = None,
                  eos: str = "PR", kij: Any = None, quantum_hydrogen: bool = False, *,
-                 ln_K: Callable[[np.ndarray], Any] | None = None) -> None:
+                 hydrogen_omega: float | None = None, volume_translation: str | None = None,
+                 pure_eos: str | None = None, ln_K: Callable[[np.ndarray], Any] | None = None) -> None:
         from hipeq.models import build_model
 
         if isinstance(species, (str, Species)) or not isinstance(species, Sequence) or not species:
@@ -92,7 +97,8 @@ class ReactionSystem:
         nc, nr = len(names), len(self.reactions)
         self.nu = stoichiometric_matrix(self.reactions, names) if nr else np.zeros((0, nc))
         self.elements, self.element_matrix = element_matrix(names)
-        self.model = build_model(names, eos, kij, quantum_hydrogen)
+        self.model = build_model(names, eos, kij, quantum_hydrogen, hydrogen_omega=hydrogen_omega,
+                                 volume_translation=volume_translation, pure_eos=pure_eos)
         self.table = g0_table(records)
         self.T_min, self.T_max = self.table.t_lo, self.table.t_hi
         self._element_null = null_space(self.element_matrix)
