@@ -245,19 +245,27 @@ def cubic_z(A, B, d1, d2):
 # the cubic mixture: ln phi, and derivatives from the reduced residual Helmholtz energy
 # ---------------------------------------------------------------------------------------------------------
 @njit(cache=True)
-def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
+def _cubic_mix_sums(y, aij, bi, si):
+    """van der Waals one-fluid sums: si[i] = sum_j y_j a_ij; returns (a, b) = (sum_i y_i si[i], sum_i y_i b_i)."""
     nc = y.shape[0]
-    d1 = consts[DELTA1]
-    d2 = consts[DELTA2]
     a = 0.0
     b = 0.0
     for i in range(nc):
         s = 0.0
         for j in range(nc):
             s += y[j] * aij[i, j]
-        out[i] = s
+        si[i] = s
         a += y[i] * s
         b += y[i] * bi[i]
+    return a, b
+
+
+@njit(cache=True)
+def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
+    nc = y.shape[0]
+    d1 = consts[DELTA1]
+    d2 = consts[DELTA2]
+    a, b = _cubic_mix_sums(y, aij, bi, out)  # out[i] holds sum_j y_j a_ij for now
     rt = R * T
     A = a * P / (rt * rt)
     B = b * P / rt
@@ -294,21 +302,6 @@ def _helmholtz_parts(T, V, a, b, d1, d2):
     f_BV = -(2.0 * f_V + V * f_VV) / b
     f_BB = -(2.0 * f_B + V * f_BV) / b
     return g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB
-
-
-@njit(cache=True)
-def _cubic_mix_sums(y, aij, bi, si):
-    nc = y.shape[0]
-    a = 0.0
-    b = 0.0
-    for i in range(nc):
-        s = 0.0
-        for j in range(nc):
-            s += y[j] * aij[i, j]
-        si[i] = s
-        a += y[i] * s
-        b += y[i] * bi[i]
-    return a, b
 
 
 @njit(cache=True)
