@@ -1,0 +1,123 @@
+"""Serial compiled loops over the solver's per-state pieces, to say where a state's time goes.
+
+Each loop runs on one thread, with scratch allocated once, and returns a checksum. They call hipeq's private
+kernels exactly as the driver does (``hipeq.solvers._common.evaluate``, ``g0_into``; ``tdep_into``), so a change
+of those signatures shows up here first; the benchmark that uses them reports a failure instead of a figure.
+"""
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from hipeq.models._kernels import tdep_into
+from hipeq.solvers._common import WITH_JACOBIAN, WITH_PHI, evaluate, g0_into
+
+
+@njit(cache=True)
+def loop_per_temperature(code, T, comp, consts, kmat, u_lo, h, table):
+    """tdep_into + g0_into per state: what a state at a new temperature pays once."""
+    nc = comp.shape[0]
+    aij = np.empty((nc, nc))
+    daij = np.empty((nc, nc))
+    bi = np.empty(nc)
+    dbi = np.empty(nc)
+    g0 = np.empty(nc)
+    acc = 0.0
+    for k in range(T.shape[0]):
+        tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
+        g0_into(T[k], u_lo, h, table, g0)
+        acc += aij[0, 0] + g0[0]
+    return acc
+
+
+@njit(cache=True)
+def loop_g0(T, u_lo, h, table, nc):
+    g0 = np.empty(nc)
+    acc = 0.0
+    for k in range(T.shape[0]):
+        g0_into(T[k], u_lo, h, table, g0)
+        acc += g0[0]
+    return acc
+
+
+@njit(cache=True)
+def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table):
+    """``evaluate`` (amounts -> y, ln phi [+ Jacobian], mu, G) at the temperature T0 for every row of N."""
+    nc = comp.shape[0]
+    aij = np.empty((nc, nc))
+    daij = np.empty((nc, nc))
+    bi = np.empty(nc)
+    dbi = np.empty(nc)
+    g0 = np.empty(nc)
+    y = np.empty(nc)
+    ln_phi = np.zeros(nc)
+    jac = np.empty((nc, nc))
+    mu = np.empty(nc)
+    active = np.ones(nc, dtype=np.bool_)
+    tdep_into(code, T0, comp, consts, kmat, aij, bi, daij, dbi)
+    g0_into(T0, u_lo, h, table, g0)
+    acc = 0.0
+    for k in range(N.shape[0]):
+        ln_p = np.log(P[k] / 1e5)
+        n_t, z, root, g = evaluate(mode, code, T0, P[k], ln_p, N[k], active, g0, aij, bi, consts, y, ln_phi, jac,
+                                   mu)
+        acc += g + z
+    return acc
+
+
+MODES = {"with_jacobian": WITH_JACOBIAN, "with_phi": WITH_PHI}
+
+
+def make_solve_state_loop():
+    """A serial loop over ``hipeq.solvers._driver.solve_state`` (private; built on first use so that a changed
+    signature only disables the figures that need it). mode 0: solve each state from a cold start; mode 1: the
+    same, then solve it again warm-started at its own answer (zero Newton steps), so that the difference of the
+    two is the fixed cost of a state."""
+    from hipeq.solvers import _driver as D
+    from hipeq.solvers._common import make_work
+
+    @njit(cache=False)
+    def loop(static, nr, ne, T, PV, N0, pats, opts_i, opts_f, out_species, out_reactions, element_res, mode):
+        n = T.shape[0]
+        nc = N0.shape[1]
+        work = make_work(nc, nr, ne)
+        empty = np.zeros(0)
+        iterations = 0
+        for k in range(n):
+            r = D.solve_state(*static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, False, work,
+                              out_species[k], out_reactions[k], element_res[k])
+            iterations += r[1]
+            if mode == 1:
+                D.solve_state(*static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, True, work,
+                              out_species[k], out_reactions[k], element_res[k])
+        return iterations
+
+    return loop
+
+
+SOLVE_STATE_TAIL = ["T", "PV", "n0", "pat", "ln_k_user", "guess", "opts_i", "opts_f", "new_T", "warm", "work",
+                    "out_species", "out_reactions", "element_res"]
+
+
+def solve_state_arguments(many_args: tuple) -> dict | None:
+    """From the arguments of one ``solve_many`` call, those the loop needs, by parameter name; None when the
+    private signatures are not the ones this loop was written for."""
+    import inspect
+
+    from hipeq.solvers import _driver as D
+
+    many = list(inspect.signature(D.solve_many.py_func).parameters)
+    one = list(inspect.signature(D.solve_state.py_func).parameters)
+    if "T" not in many or "T" not in one:
+        return None
+    k_many, k_one = many.index("T"), one.index("T")
+    if many[:k_many] != one[:k_one] or one[k_one:] != SOLVE_STATE_TAIL:
+        return None
+    named = dict(zip(many, many_args))
+    need = ("T", "PV", "N0", "pats", "opts_i", "opts_f", "out_species", "out_reactions", "element_res", "nu", "A",
+            "pg_Q")
+    if any(name not in named for name in need):
+        return None
+    out = {name: named[name] for name in need}
+    out["static"] = tuple(many_args[:k_many])
+    return out
