@@ -124,17 +124,23 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
     N0 = np.zeros((n, nc))
     for j, arr in cols:
         N0[:, j] = np.broadcast_to(arr, shape).reshape(n)
-    with np.errstate(invalid="ignore"):
-        valid = (Tf >= system.T_min) & (Tf <= system.T_max) & (PVf > 0.0) & np.isfinite(PVf)
-        if not fixed_volume:
-            valid &= PVf <= 1e10
-        valid &= np.all(np.isfinite(N0), axis=1) & np.all(N0 >= 0.0, axis=1) & (N0.sum(axis=1) > 0.0)
-    keys = (N0 > 0.0) @ system._bits
+    # validity and feed patterns block by block, so that temporaries stay bounded by BLOCK (flat peak memory)
+    valid = np.empty(n, dtype=np.bool_)
     pats = np.zeros(n, dtype=np.int64)
-    if valid.any():
-        unique, inverse = np.unique(keys[valid], return_inverse=True)
-        ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
-        pats[valid] = ids[inverse]
+    for a in range(0, n, BLOCK):
+        b = min(n, a + BLOCK)
+        t, pv, n0 = Tf[a:b], PVf[a:b], N0[a:b]
+        with np.errstate(invalid="ignore"):
+            ok = (t >= system.T_min) & (t <= system.T_max) & (pv > 0.0) & np.isfinite(pv)
+            if not fixed_volume:
+                ok &= pv <= 1e10
+            ok &= np.all(np.isfinite(n0), axis=1) & np.all(n0 >= 0.0, axis=1) & (n0.sum(axis=1) > 0.0)
+        valid[a:b] = ok
+        if ok.any():
+            keys = (n0[ok] > 0.0) @ system._bits
+            unique, inverse = np.unique(keys, return_inverse=True)
+            ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
+            pats[a:b][ok] = ids[inverse]
     species_out = np.empty((n, 2, nc))
     reactions_out = np.empty((n, 3, nr))
     element_res = np.empty((n, ne))
