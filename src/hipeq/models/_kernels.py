@@ -83,8 +83,6 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
     nc = comp.shape[0]
     oa = consts[OMEGA_A]
     ob = consts[OMEGA_B]
-    ai = np.empty(nc)
-    dai = np.empty(nc)
     for i in range(nc):
         tc, pc, dtc, dpc = effective_critical(T, comp, i)
         c = oa * R * R * tc * tc / pc
@@ -96,18 +94,19 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
         q = 1.0 + m * (1.0 - s)
         alpha = q * q
         dalpha = -m * q * dtau / s
-        ai[i] = c * alpha
-        dai[i] = dc * alpha + c * dalpha
+        aij[i, i] = c * alpha
+        daij[i, i] = dc * alpha + c * dalpha
         bi[i] = ob * R * tc / pc
         dbi[i] = ob * R * (dtc / pc - tc * dpc / (pc * pc))
     grouped = consts.shape[0] > EXTRA0 and consts[HAS_GROUP_KIJ] == 1.0
     offset_a = EXTRA0 + nc
     offset_b = offset_a + nc * nc
     for i in range(nc):
-        for j in range(nc):
-            g = math.sqrt(ai[i] * ai[j])
+        for j in range(i + 1, nc):
+            a_i, a_j, da_i, da_j = aij[i, i], aij[j, j], daij[i, i], daij[j, j]
+            g = math.sqrt(a_i * a_j)
             big_a = consts[offset_a + i * nc + j] if grouped else 0.0
-            if big_a != 0.0 and i != j:
+            if big_a != 0.0:
                 # E-PPR78 (Jaubert, Qian, Lasala & Privat 2022, Fluid Phase Equilib. 560, 113456) for one-group
                 # molecules: k_ij = [E_ij - (d_i - d_j)^2] / (2 d_i d_j), d_i = sqrt(a_i)/b_i,
                 # E_ij = A_ij (298.15/T)^(B_ij/A_ij - 1); equivalently
@@ -115,16 +114,18 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
                 expo = consts[offset_b + i * nc + j] / big_a - 1.0
                 e = big_a * (298.15 / T) ** expo
                 de = -e * expo / T
-                aij[i, j] = 0.5 * (ai[i] * bi[j] / bi[i] + ai[j] * bi[i] / bi[j] - bi[i] * bi[j] * e)
-                daij[i, j] = 0.5 * (dai[i] * bi[j] / bi[i] + ai[i] * dbi[j] / bi[i]
-                                    - ai[i] * bi[j] * dbi[i] / (bi[i] * bi[i])
-                                    + dai[j] * bi[i] / bi[j] + ai[j] * dbi[i] / bi[j]
-                                    - ai[j] * bi[i] * dbi[j] / (bi[j] * bi[j])
+                aij[i, j] = 0.5 * (a_i * bi[j] / bi[i] + a_j * bi[i] / bi[j] - bi[i] * bi[j] * e)
+                daij[i, j] = 0.5 * (da_i * bi[j] / bi[i] + a_i * dbi[j] / bi[i]
+                                    - a_i * bi[j] * dbi[i] / (bi[i] * bi[i])
+                                    + da_j * bi[i] / bi[j] + a_j * dbi[i] / bi[j]
+                                    - a_j * bi[i] * dbi[j] / (bi[j] * bi[j])
                                     - (dbi[i] * bi[j] + bi[i] * dbi[j]) * e - bi[i] * bi[j] * de)
             else:
                 one_k = 1.0 - kmat[i, j]
                 aij[i, j] = one_k * g
-                daij[i, j] = one_k * (dai[i] * ai[j] + ai[i] * dai[j]) / (2.0 * g)
+                daij[i, j] = one_k * (da_i * a_j + a_i * da_j) / (2.0 * g)
+            aij[j, i] = aij[i, j]
+            daij[j, i] = daij[i, j]
 
 
 @njit(cache=True)
