@@ -54,3 +54,20 @@ def test_constant_table_and_species_record():
     assert code == 0 and "CH3OH" in out and "Tc / K" in out
     code, _, err = _run("species", "methanl")
     assert code == 2 and "methanol" in err
+
+
+def test_case_kij_applies_to_its_own_model_and_comparison_still_runs(tmp_path):
+    """A [model] kij table must not be handed to the compared ideal gas (it has no k_ij): regression."""
+    case = tmp_path / "kij.toml"
+    text = DEMO.read_text().replace("quantum_hydrogen = false",
+                                    'quantum_hydrogen = false\nkij = { "H2-N2" = 0.05 }')
+    case.write_text(text)
+    target = tmp_path / "out.json"
+    code, out, err = _run("run", str(case), "--json", str(target))
+    assert code == 0, err
+    report = json.loads(target.read_text())
+    kij = report["result"]["kij"]
+    pair = [v for k, v in kij.items() if set(k.split(" / ")) == {"H2", "N2"}]
+    assert pair == [pytest.approx(0.05)], kij
+    assert set(report["comparison"]) == {"ideal", "SRK", "PR"}
+    assert report["sweep"]["species"] == "NH3"

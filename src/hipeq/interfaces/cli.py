@@ -41,8 +41,10 @@ def _table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
 def _system(case, eos: str):
     from hipeq.solvers.system import ReactionSystem
 
+    # the case's k_ij belong to its own model; compared models use their defaults (the ideal gas has none)
     return ReactionSystem(list(case.species), reactions=list(case.reactions) if case.reactions else None,
-                          eos=eos, kij=case.kij or None, quantum_hydrogen=case.quantum_hydrogen)
+                          eos=eos, kij=(case.kij or None) if eos == case.eos else None,
+                          quantum_hydrogen=case.quantum_hydrogen)
 
 
 def _solve(system, case, **conditions):
@@ -90,7 +92,7 @@ def run_case(path: str, json_out: str | None = None, out=None) -> int:
             crow.append([model] + [f"{res.y[n]:.5f}" for n in shown] + [f"{res.P / 1e5:.5g}"])
         print(_table(["model"] + shown + ["P / bar"], crow), file=out)
     if case.sweep_T is not None and case.sweep_P is not None and case.V is None:
-        products = [n for n in system.species_names if case.feed.get(n, 0.0) == 0.0 or n in _products(system)]
+        products = _products(system)
         key = products[0] if products else system.species_names[0]
         TT, PP = np.meshgrid(case.sweep_T, case.sweep_P, indexing="ij")
         batch = system.equilibrium(feed=case.feed, T=TT.ravel(), P=PP.ravel())
@@ -115,10 +117,8 @@ def run_case(path: str, json_out: str | None = None, out=None) -> int:
 
 
 def _products(system) -> list[str]:
-    names: list[str] = []
-    for r in system.reactions:
-        names += [s for s, c in r.coefficients.items() if c > 0]
-    return names
+    """Species formed by the system's reactions, in reaction order (the sweep reports the first)."""
+    return [s for r in system.reactions for s, c in r.coefficients.items() if c > 0]
 
 
 def show_constant(reaction: str, t_from: str, t_to: str, count: int, out=None) -> int:
