@@ -22,6 +22,8 @@ same problem; its cost is not timed here.
 """
 from __future__ import annotations
 
+from collections.abc import Callable
+
 import math
 from dataclasses import dataclass
 
@@ -202,16 +204,15 @@ def _feasible_range(n0: list[float], nu: list[list[float]]) -> tuple[float, floa
     return ends[0], ends[1]
 
 
-def solve_one_reaction(params: Parameters, T: float, P: float, n0: list[float], nu: list[list[float]],
-                       ln_k: list[float]) -> list[float]:
-    """Equilibrium mole fractions of a one-reaction system: brentq on the extent inside phi substitution."""
-    nc = len(n0)
-    lnphi = [0.0] * nc
+def _substitute(params: Parameters, T: float, P: float, n0: list[float], nu: list[list[float]],
+                inner: Callable[[list[float], float], list[float]]) -> list[float]:
+    """Successive substitution on phi: solve the extents with phi frozen (``inner(lnphi, ln_p)``), update phi at
+    the new composition, repeat until ln phi changes by less than PHI_TOL. Returns the mole fractions."""
+    lnphi = [0.0] * len(n0)
     ln_p = math.log(P / P0)
     for _ in range(MAX_OUTER):
         Counter.outer_steps += 1
-        xi = _brent_one(0, n0, nu, lnphi, ln_p, ln_k[0])
-        n = _amounts(n0, nu, [xi])
+        n = _amounts(n0, nu, inner(lnphi, ln_p))
         nt = sum(n)
         y = [v / nt for v in n]
         new = ln_phis(params, T, P, y)
@@ -222,16 +223,18 @@ def solve_one_reaction(params: Parameters, T: float, P: float, n0: list[float], 
     return y
 
 
+def solve_one_reaction(params: Parameters, T: float, P: float, n0: list[float], nu: list[list[float]],
+                       ln_k: list[float]) -> list[float]:
+    """Equilibrium mole fractions of a one-reaction system: brentq on the extent inside phi substitution."""
+    return _substitute(params, T, P, n0, nu, lambda lnphi, ln_p: [_brent_one(0, n0, nu, lnphi, ln_p, ln_k[0])])
+
+
 def solve_two_reactions(params: Parameters, T: float, P: float, n0: list[float], nu: list[list[float]],
                         ln_k: list[float]) -> list[float]:
     """Equilibrium mole fractions of a two-reaction system: fsolve on both extents inside phi substitution."""
-    nc = len(n0)
-    lnphi = [0.0] * nc
-    ln_p = math.log(P / P0)
-    xi = [0.0, 0.0]  # the feed itself is a valid start (every species present)
-    for _ in range(MAX_OUTER):
-        Counter.outer_steps += 1
+    xi = [0.0, 0.0]  # the feed itself is a valid start (every species present); later passes start warm
 
+    def inner(lnphi: list[float], ln_p: float) -> list[float]:
         def residuals(x: np.ndarray) -> list[float]:
             n = _amounts(n0, nu, [float(x[0]), float(x[1])])
             if min(n) <= 0.0:
@@ -241,18 +244,12 @@ def solve_two_reactions(params: Parameters, T: float, P: float, n0: list[float],
         sol, info, ier, _ = fsolve(residuals, xi, xtol=1e-13, full_output=True)
         if ier != 1 or max(abs(v) for v in residuals(sol)) > 1e-9:
             Counter.fallbacks += 1
-            xi = _nested_brent(n0, nu, lnphi, ln_p, ln_k)
+            xi[:] = _nested_brent(n0, nu, lnphi, ln_p, ln_k)
         else:
-            xi = [float(sol[0]), float(sol[1])]
-        n = _amounts(n0, nu, xi)
-        nt = sum(n)
-        y = [v / nt for v in n]
-        new = ln_phis(params, T, P, y)
-        change = max(abs(a - b) for a, b in zip(new, lnphi))
-        lnphi = new
-        if change < PHI_TOL:
-            break
-    return y
+            xi[:] = [float(sol[0]), float(sol[1])]
+        return list(xi)
+
+    return _substitute(params, T, P, n0, nu, inner)
 
 
 def solve_states(params: Parameters, T: np.ndarray, P: np.ndarray, n0: np.ndarray, nu: np.ndarray,
