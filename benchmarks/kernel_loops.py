@@ -71,10 +71,11 @@ def loop_ln_phi_dn_fixed_T(code, T, P, Y, comp, consts, kmat):
     dbi = np.empty(nc)
     out = np.empty(nc)
     jac = np.empty((nc, nc))
+    scratch = np.empty((2, nc))
     tdep_into(code, T[0], comp, consts, kmat, aij, bi, daij, dbi)
     acc = 0.0
     for k in range(P.shape[0]):
-        z, root = ln_phi_dn_tp(code, T[0], P[k], Y[k], aij, bi, consts, out, jac)
+        z, root = ln_phi_dn_tp(code, T[0], P[k], Y[k], aij, bi, consts, out, jac, scratch)
         acc += out[0] + jac[0, 0] + z
     return acc
 

@@ -10,7 +10,7 @@ import numpy as np
 from numba import njit
 
 from hipeq.models._kernels import tdep_into
-from hipeq.solvers._common import WITH_JACOBIAN, WITH_PHI, evaluate, g0_into
+from hipeq.solvers._common import WITH_JACOBIAN, WITH_PHI, WITH_REDUCED, evaluate, g0_into
 
 
 @njit(cache=True)
@@ -41,8 +41,9 @@ def loop_g0(T, u_lo, h, table, nc):
 
 
 @njit(cache=True)
-def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table):
-    """``evaluate`` (amounts -> y, ln phi [+ Jacobian], mu, G) at the temperature T0 for every row of N."""
+def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table, W):
+    """``evaluate`` (amounts -> y, ln phi [+ Jacobian or the reduced Jacobian W^T J W], mu, G) at the temperature
+    T0 for every row of N."""
     nc = comp.shape[0]
     aij = np.empty((nc, nc))
     daij = np.empty((nc, nc))
@@ -53,6 +54,8 @@ def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table):
     ln_phi = np.zeros(nc)
     jac = np.empty((nc, nc))
     mu = np.empty(nc)
+    M = np.empty((W.shape[1], W.shape[1]))
+    scratch = np.empty((2, nc))
     active = np.ones(nc, dtype=np.bool_)
     tdep_into(code, T0, comp, consts, kmat, aij, bi, daij, dbi)
     g0_into(T0, u_lo, h, table, g0)
@@ -60,12 +63,12 @@ def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table):
     for k in range(N.shape[0]):
         ln_p = np.log(P[k] / 1e5)
         n_t, z, root, g = evaluate(mode, code, T0, P[k], ln_p, N[k], active, g0, aij, bi, consts, y, ln_phi, jac,
-                                   mu)
+                                   mu, W, W.shape[1], M, scratch)
         acc += g + z
     return acc
 
 
-MODES = {"with_jacobian": WITH_JACOBIAN, "with_phi": WITH_PHI}
+MODES = {"with_jacobian": WITH_JACOBIAN, "with_reduced": WITH_REDUCED, "with_phi": WITH_PHI}
 
 
 def make_solve_state_loop():

@@ -80,7 +80,7 @@ def _kernel_jac(model, T, P, y):
     aij, daij, bi, dbi = np.empty((nc, nc)), np.empty((nc, nc)), np.empty(nc), np.empty(nc)
     K.tdep_into(model.code, T, model.comp, model.consts, model.kmat, aij, bi, daij, dbi)
     out, jac = np.empty(nc), np.empty((nc, nc))
-    K.ln_phi_dn_tp(model.code, T, P, y, aij, bi, model.consts, out, jac)
+    K.ln_phi_dn_tp(model.code, T, P, y, aij, bi, model.consts, out, jac, np.empty((2, y.size)))
     return jac, aij, bi
 
 

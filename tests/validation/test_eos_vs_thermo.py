@@ -46,7 +46,7 @@ def test_composition_derivatives_match_thermo(eos):
         aij, daij, bi, dbi = np.empty((nc, nc)), np.empty((nc, nc)), np.empty(nc), np.empty(nc)
         K.tdep_into(model.code, T[k], model.comp, model.consts, model.kmat, aij, bi, daij, dbi)
         out, jac = np.empty(nc), np.empty((nc, nc))
-        K.ln_phi_dn_tp(model.code, T[k], P[k], Y[k], aij, bi, model.consts, out, jac)
+        K.ln_phi_dn_tp(model.code, T[k], P[k], Y[k], aij, bi, model.consts, out, jac, np.empty((2, nc)))
         state, phase = thermo_state(eos, model, T[k], P[k], Y[k])
         np.testing.assert_allclose(jac, np.asarray(state.dlnphis_dns(getattr(state, f"Z_{phase}"))), rtol=0,
                                    atol=1e-9, err_msg=f"{eos} T={T[k]:.1f} P={P[k]:.4g} y={np.round(Y[k], 4)}")

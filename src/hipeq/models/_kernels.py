@@ -26,6 +26,8 @@ import math
 import numpy as np
 from numba import njit, prange
 
+from hipeq._jit import kernel
+
 R = 8.314462618  # J/(mol K), CODATA 2018
 
 MODEL_IDEAL = 0
@@ -55,7 +57,7 @@ QUANTUM_C1 = 21.8
 QUANTUM_C2 = 44.2
 
 
-@njit(cache=True)
+@kernel
 def effective_critical(T, comp, i):
     """Critical constants of component i at T, with the quantum correction when comp[i, QMASS] > 0.
 
@@ -78,7 +80,7 @@ def effective_critical(T, comp, i):
 # ---------------------------------------------------------------------------------------------------------
 # temperature-dependent parameters
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
     nc = comp.shape[0]
     oa = consts[OMEGA_A]
@@ -128,7 +130,7 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
             daij[j, i] = daij[i, j]
 
 
-@njit(cache=True)
+@kernel
 def _virial_tdep(T, comp, kmat, bij, dbij):
     """Second virial coefficients B_ij(T) [m3/mol] from the Pitzer-type generalized correlation.
 
@@ -164,7 +166,7 @@ def _virial_tdep(T, comp, kmat, bij, dbij):
             dbij[j, i] = dbij[i, j]
 
 
-@njit(cache=True)
+@kernel
 def tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
     """Fill the temperature-dependent parameters of model ``code`` at T [K] (see module docstring)."""
     if code == MODEL_CUBIC or code == MODEL_LEWIS_RANDALL:
@@ -180,10 +182,37 @@ def tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
         dbi[:] = 0.0
 
 
+@kernel
+def tparams_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
+    """As ``tdep_into`` but only a_ij and b_i, for solvers at fixed temperature (``daij``, ``dbi`` are scratch and
+    are left undefined). For the cubic with constant k_ij the one-fluid terms are formed from
+    sqrt(a_i) = sqrt(Omega_a) R T_ci / sqrt(P_ci) |1 + m_i (1 - sqrt(T/T_ci))| (Soave 1972 alpha function) as
+    a_ij = (1 - k_ij) sqrt(a_i) sqrt(a_j): nc square roots instead of nc (nc + 1) / 2, and no T-derivatives."""
+    grouped = consts.shape[0] > EXTRA0 and consts[HAS_GROUP_KIJ] == 1.0
+    if code != MODEL_CUBIC and code != MODEL_LEWIS_RANDALL or grouped:
+        tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi)
+        return
+    nc = comp.shape[0]
+    oa = consts[OMEGA_A]
+    ob = consts[OMEGA_B]
+    sa = dbi
+    for i in range(nc):
+        tc, pc, _, _ = effective_critical(T, comp, i)
+        q = 1.0 + comp[i, M_ALPHA] * (1.0 - math.sqrt(T / tc))
+        sa[i] = math.sqrt(oa / pc) * R * tc * abs(q)
+        bi[i] = ob * R * tc / pc
+    for i in range(nc):
+        aij[i, i] = sa[i] * sa[i]
+        for j in range(i + 1, nc):
+            v = (1.0 - kmat[i, j]) * sa[i] * sa[j]
+            aij[i, j] = v
+            aij[j, i] = v
+
+
 # ---------------------------------------------------------------------------------------------------------
 # the cubic: roots
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def _polish(z, c2, c1, c0):
     for _ in range(3):
         f = ((z + c2) * z + c1) * z + c0
@@ -194,13 +223,13 @@ def _polish(z, c2, c1, c0):
     return z
 
 
-@njit(cache=True)
+@kernel
 def _g_of_root(z, A, B, d1, d2):
     """Residual Gibbs energy over RT of the mixture at the root z (the same formula for every root)."""
     return z - 1.0 - math.log(z - B) - A / (B * (d1 - d2)) * math.log((z + d1 * B) / (z + d2 * B))
 
 
-@njit(cache=True)
+@kernel
 def cubic_z(A, B, d1, d2):
     """Compressibility factor of the generic cubic at reduced parameters A = aP/(RT)^2, B = bP/(RT).
 
@@ -245,7 +274,7 @@ def cubic_z(A, B, d1, d2):
 # ---------------------------------------------------------------------------------------------------------
 # the cubic mixture: ln phi, and derivatives from the reduced residual Helmholtz energy
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def _cubic_mix_sums(y, aij, bi, si):
     """van der Waals one-fluid sums: si[i] = sum_j y_j a_ij; returns (a, b) = (sum_i y_i si[i], sum_i y_i b_i)."""
     nc = y.shape[0]
@@ -261,12 +290,18 @@ def _cubic_mix_sums(y, aij, bi, si):
     return a, b
 
 
-@njit(cache=True)
-def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
+@kernel
+def _cubic_core(T, P, y, aij, bi, consts, out, si):
+    """ln phi_i of the cubic mixture into ``out`` (Michelsen & Mollerup 2007, ch. 3):
+
+        ln phi_i = (b_i/b)(Z - 1) - ln(Z - B) - A/(B (delta1 - delta2)) (2 s_i/a - b_i/b) ln[(Z + delta1 B)/(Z + delta2 B)]
+
+    with s_i = sum_j y_j a_ij left in ``si`` (``si`` may be ``out`` itself when the caller needs only ln phi).
+    Returns (Z, root code, a, b, ln[(Z + delta1 B)/(Z + delta2 B)]) so that derivatives can reuse them."""
     nc = y.shape[0]
     d1 = consts[DELTA1]
     d2 = consts[DELTA2]
-    a, b = _cubic_mix_sums(y, aij, bi, out)  # out[i] holds sum_j y_j a_ij for now
+    a, b = _cubic_mix_sums(y, aij, bi, si)
     rt = R * T
     A = a * P / (rt * rt)
     B = b * P / rt
@@ -274,53 +309,60 @@ def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
     if root == ROOT_INVALID:
         for i in range(nc):
             out[i] = 0.0
-        return z, root
+        return z, root, a, b, 0.0
     lzb = math.log(z - B)
     lq = math.log((z + d1 * B) / (z + d2 * B))
     c = A / (B * (d1 - d2)) * lq
     for i in range(nc):
         br = bi[i] / b
-        out[i] = br * (z - 1.0) - lzb - c * (2.0 * out[i] / a - br)
+        out[i] = br * (z - 1.0) - lzb - c * (2.0 * si[i] / a - br)
+    return z, root, a, b, lq
+
+
+@kernel
+def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
+    z, root, _, _, _ = _cubic_core(T, P, y, aij, bi, consts, out, out)
     return z, root
 
 
-@njit(cache=True)
-def _helmholtz_parts(T, V, a, b, d1, d2):
-    """Derivatives of g and f of Michelsen & Mollerup (2007), ch. 3, at one mole: returns a tuple."""
+@kernel
+def _helmholtz_parts(T, V, a, b, d1, d2, lq):
+    """Derivatives of g and f of Michelsen & Mollerup (2007), ch. 3, at one mole, given
+    lq = ln[(V + delta1 b)/(V + delta2 b)]: returns (g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB)."""
     vb = V - b
     p1 = V + d1 * b
     p2 = V + d2 * b
-    g = math.log(1.0 - b / V)
-    g_V = b / (V * vb)
-    g_B = -1.0 / vb
-    g_VV = -1.0 / (vb * vb) + 1.0 / (V * V)
-    g_BV = 1.0 / (vb * vb)
-    g_BB = -1.0 / (vb * vb)
-    f = math.log(p1 / p2) / (R * b * (d1 - d2))
+    ivb = 1.0 / vb
+    ivb2 = ivb * ivb
+    g_V = b / V * ivb
+    g_B = -ivb
+    g_VV = -ivb2 + 1.0 / (V * V)
+    g_BV = ivb2
+    g_BB = -ivb2
+    f = lq / (R * b * (d1 - d2))
     f_V = -1.0 / (R * p1 * p2)
     f_B = -(f + V * f_V) / b
-    f_VV = (2.0 * V + (d1 + d2) * b) / (R * p1 * p1 * p2 * p2)
+    f_VV = (2.0 * V + (d1 + d2) * b) * (f_V * f_V) * R
     f_BV = -(2.0 * f_V + V * f_VV) / b
     f_BB = -(2.0 * f_B + V * f_BV) / b
-    return g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB
+    return g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB
 
 
-@njit(cache=True)
-def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac):
-    """ln phi_i and jac_ij = n d ln phi_i / d n_j at fixed T, P (Michelsen & Mollerup 2007, eq. 2.x:
-    d ln phi_i/d n_j = F_ij + 1/n + P_i P_j / (R T P_V))."""
-    nc = y.shape[0]
-    z, root = _cubic_ln_phi(T, P, y, aij, bi, consts, out)
-    if root == ROOT_INVALID:
-        jac[:, :] = 0.0
-        return z, root
+@kernel
+def _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi):
+    """Coefficients of n d ln phi_i / d n_j for the cubic at fixed T, P (Michelsen & Mollerup 2007, ch. 2-3):
+
+        n d ln phi_i/d n_j = F_nB (b_i + b_j) + F_BD (b_i D_j + b_j D_i) + F_BB b_i b_j + F_D 2 a_ij + 1
+                             + P_i P_j / (R T P_V),     D_i = 2 s_i,
+
+    with P_i = n dP/dn_i and P_V = n dP/dV scaled to one mole. Fills ``Pi`` and returns
+    (F_nB, F_BD, F_BB, F_D, 1 / (R T P_V))."""
+    nc = bi.shape[0]
     d1 = consts[DELTA1]
     d2 = consts[DELTA2]
-    si = np.empty(nc)
-    a, b = _cubic_mix_sums(y, aij, bi, si)
     rt = R * T
     V = z * rt / P
-    g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2)
+    g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2, lq)
     F_nB = -g_B
     F_BD = -f_B / T
     F_BB = -g_BB - a / T * f_BB
@@ -329,36 +371,99 @@ def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac):
     F_DV = -f_V / T
     F_VV = -g_VV - a / T * f_VV
     P_V = -rt * F_VV - rt / (V * V)
-    Pi = np.empty(nc)
     for i in range(nc):
         F_iV = -g_V + F_BV * bi[i] + F_DV * 2.0 * si[i]
         Pi[i] = -rt * F_iV + rt / V
+    return F_nB, F_BD, F_BB, F_D, 1.0 / (rt * P_V)
+
+
+@kernel
+def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
+    """ln phi_i and jac_ij = n d ln phi_i / d n_j at fixed T, P (Michelsen & Mollerup 2007, ch. 2:
+    d ln phi_i/d n_j = F_ij + 1/n + P_i P_j / (R T P_V)); ``scratch`` (2, nc) holds s_i and P_i."""
+    nc = y.shape[0]
+    si = scratch[0]
+    Pi = scratch[1]
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
+    if root == ROOT_INVALID:
+        jac[:, :] = 0.0
+        return z, root
+    F_nB, F_BD, F_BB, F_D, ipv = _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi)
     for i in range(nc):
+        Di = 2.0 * si[i]
         for j in range(i, nc):
-            Di = 2.0 * si[i]
             Dj = 2.0 * si[j]
-            F_ij = (F_nB * (bi[i] + bi[j]) + F_BD * (bi[i] * Dj + bi[j] * Di) + F_BB * bi[i] * bi[j]
-                    + F_D * 2.0 * aij[i, j])
-            v = F_ij + 1.0 + Pi[i] * Pi[j] / (rt * P_V)
+            v = (F_nB * (bi[i] + bi[j]) + F_BD * (bi[i] * Dj + bi[j] * Di) + F_BB * bi[i] * bi[j]
+                 + F_D * 2.0 * aij[i, j] + 1.0 + Pi[i] * Pi[j] * ipv)
             jac[i, j] = v
             jac[j, i] = v
     return z, root
 
 
-@njit(cache=True)
+@kernel
+def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
+    """ln phi_i and the reduced matrix M_tu = sum_ij W_it (n d ln phi_i / d n_j) W_ju for the columns t, u < neff
+    of W, from the same coefficients as ``_cubic_ln_phi_dn`` without forming the nc x nc matrix:
+
+        M_tu = F_nB (wb_t ws_u + ws_t wb_u) + F_BD (wb_t wD_u + wD_t wb_u) + F_BB wb_t wb_u + 2 F_D (W^T a W)_tu
+               + ws_t ws_u + wp_t wp_u / (R T P_V)
+
+    with wb = W^T b, ws = W^T 1, wD = W^T D, wp = W^T P_i (Michelsen & Mollerup 2007, ch. 2-3)."""
+    nc = y.shape[0]
+    si = scratch[0]
+    Pi = scratch[1]
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
+    if root == ROOT_INVALID:
+        return z, root
+    F_nB, F_BD, F_BB, F_D, ipv = _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi)
+    for t in range(neff):
+        wb_t = 0.0
+        ws_t = 0.0
+        wd_t = 0.0
+        wp_t = 0.0
+        for i in range(nc):
+            w = W[i, t]
+            wb_t += w * bi[i]
+            ws_t += w
+            wd_t += w * 2.0 * si[i]
+            wp_t += w * Pi[i]
+        for u in range(t + 1):
+            wb_u = 0.0
+            ws_u = 0.0
+            wd_u = 0.0
+            wp_u = 0.0
+            waw = 0.0
+            for j in range(nc):
+                w = W[j, u]
+                if w != 0.0:
+                    wb_u += w * bi[j]
+                    ws_u += w
+                    wd_u += w * 2.0 * si[j]
+                    wp_u += w * Pi[j]
+                    q = 0.0
+                    for i in range(nc):
+                        q += W[i, t] * aij[i, j]
+                    waw += q * w
+            v = (F_nB * (wb_t * ws_u + ws_t * wb_u) + F_BD * (wb_t * wd_u + wd_t * wb_u) + F_BB * wb_t * wb_u
+                 + 2.0 * F_D * waw + ws_t * ws_u + wp_t * wp_u * ipv)
+            M[t, u] = v
+            M[u, t] = v
+    return z, root
+
+
+@kernel
 def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
     """ln phi_i and d ln phi_i / dT at fixed P, n (Michelsen & Mollerup 2007:
     d ln phi_i/dT = F_iT + 1/T + P_i P_T / (R T P_V)), with temperature-dependent b for quantum gases.
     Returns (Z, root, F, T F_T) with F = A_res/(nRT) so that callers can form residual properties."""
     nc = y.shape[0]
-    z, root = _cubic_ln_phi(T, P, y, aij, bi, consts, out)
+    si = dT  # s_i = sum_j y_j a_ij; dT[i] is written only after the last read of si[i]
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
     if root == ROOT_INVALID:
         dT[:] = 0.0
         return z, root, 0.0, 0.0
     d1 = consts[DELTA1]
     d2 = consts[DELTA2]
-    si = np.empty(nc)
-    a, b = _cubic_mix_sums(y, aij, bi, si)
     a_T = 0.0
     b_T = 0.0
     for i in range(nc):
@@ -367,7 +472,8 @@ def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
             a_T += y[i] * y[j] * daij[i, j]
     rt = R * T
     V = z * rt / P
-    g, g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2)
+    g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB = _helmholtz_parts(T, V, a, b, d1, d2, lq)
+    g = math.log(1.0 - b / V)
     E = a / T
     E_T = a_T / T - a / (T * T)
     F = -g - E * f
@@ -397,7 +503,7 @@ def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
 # ---------------------------------------------------------------------------------------------------------
 # virial and Lewis-Randall
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def _virial_ln_phi(T, P, y, bij, out):
     """ln phi_i = (2 sum_j y_j B_ij - B) P / (R T), Z = 1 + B P / (R T) (truncated virial in pressure)."""
     nc = y.shape[0]
@@ -415,7 +521,7 @@ def _virial_ln_phi(T, P, y, bij, out):
     return z, (ROOT_SINGLE if z > 0.0 else ROOT_INVALID), bmix
 
 
-@njit(cache=True)
+@kernel
 def _pure_cubic(T, P, a, b, d1, d2):
     rt = R * T
     A = a * P / (rt * rt)
@@ -426,7 +532,7 @@ def _pure_cubic(T, P, a, b, d1, d2):
     return z, root, _g_of_root(z, A, B, d1, d2)
 
 
-@njit(cache=True)
+@kernel
 def _shift(T, P, y, consts, out):
     """Volume translation (Peneloux, Rauzy & Freze 1982, Fluid Phase Equilib. 8, 7): v = v_cubic - c with
     c = sum_i y_i c_i leaves phase equilibria alone but shifts ln phi_i by -c_i P/(R T) and Z by -c P/(R T).
@@ -445,7 +551,7 @@ def _shift(T, P, y, consts, out):
 # ---------------------------------------------------------------------------------------------------------
 # dispatchers (the contract the solvers use)
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def ln_phi_tp(code, T, P, y, aij, bi, consts, out):
     """ln phi_i of model ``code`` at T [K], P [Pa], mole fractions y; returns (Z, root code)."""
     nc = y.shape[0]
@@ -474,30 +580,58 @@ def ln_phi_tp(code, T, P, y, aij, bi, consts, out):
     return 1.0, ROOT_SINGLE
 
 
-@njit(cache=True)
-def ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac):
-    """As ``ln_phi_tp``, also writing jac[i, j] = n d ln phi_i / d n_j at fixed T, P (symmetric)."""
+@kernel
+def ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac, scratch):
+    """As ``ln_phi_tp``, also writing jac[i, j] = n d ln phi_i / d n_j at fixed T, P (symmetric);
+    ``scratch`` is a (2, nc) work array (nothing is allocated)."""
     nc = y.shape[0]
     if code == MODEL_CUBIC:
-        z, root = _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac)
+        z, root = _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch)
         if root == ROOT_INVALID:
             return z, root
         return z - _shift(T, P, y, consts, out), root
     if code == MODEL_VIRIAL:
         z, root, bmix = _virial_ln_phi(T, P, y, aij, out)
         c = P / (R * T)
+        si = scratch[0]
         for i in range(nc):
-            si = 0.0
+            v = 0.0
             for k in range(nc):
-                si += y[k] * aij[i, k]
+                v += y[k] * aij[i, k]
+            si[i] = v
+        for i in range(nc):
             for j in range(nc):
-                sj = 0.0
-                for k in range(nc):
-                    sj += y[k] * aij[j, k]
-                jac[i, j] = 2.0 * c * (aij[i, j] - si - sj + bmix)
+                jac[i, j] = 2.0 * c * (aij[i, j] - si[i] - si[j] + bmix)
         return z, root
     jac[:, :] = 0.0
     return ln_phi_tp(code, T, P, y, aij, bi, consts, out)
+
+
+@kernel
+def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scratch):
+    """ln phi_i and M = W^T J W (leading neff x neff block), J_ij = n d ln phi_i / d n_j at fixed T, P, for the
+    columns of W (nc x >= neff): what a Newton step in reaction extents needs. The cubic forms M directly
+    (``_cubic_ln_phi_reduced``, O(neff^2 nc^2) work and no nc x nc matrix); the other models form J in ``jac``
+    and reduce it. ``scratch`` is a (2, nc) work array."""
+    nc = y.shape[0]
+    if code == MODEL_CUBIC:
+        z, root = _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch)
+        if root == ROOT_INVALID:
+            return z, root
+        return z - _shift(T, P, y, consts, out), root
+    z, root = ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac, scratch)
+    for t in range(neff):
+        for u in range(t + 1):
+            v = 0.0
+            for i in range(nc):
+                if W[i, t] != 0.0:
+                    q = 0.0
+                    for j in range(nc):
+                        q += jac[i, j] * W[j, u]
+                    v += W[i, t] * q
+            M[t, u] = v
+            M[u, t] = v
+    return z, root
 
 
 @njit(cache=True)

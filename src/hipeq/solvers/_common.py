@@ -16,7 +16,8 @@ import math
 import numpy as np
 from numba import njit
 
-from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_tp
+from hipeq._jit import kernel
+from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_reduced_tp, ln_phi_tp
 
 # ---------------------------------------------------------------------------------------------------------
 # status codes (documented in docs/solvers.md and hipeq.solvers.result.STATUS_MESSAGES)
@@ -33,6 +34,7 @@ INVALID_INPUT = 6
 FROZEN_PHI = 0  # keep ln phi as it is in the buffer (nested scheme, inner loop)
 WITH_PHI = 1  # evaluate ln phi
 WITH_JACOBIAN = 2  # evaluate ln phi and n_T d ln phi_i / d n_j
+WITH_REDUCED = 3  # evaluate ln phi and W^T (n_T d ln phi / d n) W for the extent directions W
 
 TINY = 1e-300
 LOG_TINY = math.log(TINY)
@@ -43,15 +45,15 @@ LOG_TINY = math.log(TINY)
 # ---------------------------------------------------------------------------------------------------------
 # F (N_F_ROWS, nc): per-species vectors
 F_N, F_N_TRY, F_Y, F_Y_TRY, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_DN, F_R, F_G0, F_N_PREV, F_N0_PREV, F_BI, \
-    F_DBI = range(15)
-N_F_ROWS = 15
+    F_DBI, F_SCRATCH = range(16)
+N_F_ROWS = 17  # F[F_SCRATCH : F_SCRATCH + 2] is the (2, nc) scratch of the model kernels
 # J (4, nc, nc)
 J_JAC, J_JAC_TRY, J_AIJ, J_DAIJ = range(4)
 # S (N_S_ROWS, k), k = max(n_reactions, n_element_rows, 1): small vectors
 S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START = range(11)
 N_S_ROWS = 11
-# SM (2, k, k)
-SM_H, SM_L = range(2)
+# SM (4, k, k): Newton matrix, its Cholesky factor, and the reduced ln phi Jacobian W^T J W (current, trial)
+SM_H, SM_L, SM_M, SM_M_TRY = range(4)
 # KV (2, nc + ne + 1) and IV (2, nc + ne + 1): the Newton system of the Gibbs minimisation
 KV_RHS, KV_SOL = range(2)
 IV_IDX, IV_PIV = range(2)
@@ -62,14 +64,14 @@ def make_work(nc, nr, ne):
     """Work buffers of one chunk of states: (F, J, S, SM, M, KV, IV), see the row constants above."""
     k = max(nr, ne, 1)
     big = nc + ne + 1
-    return (np.zeros((N_F_ROWS, nc)), np.zeros((4, nc, nc)), np.zeros((N_S_ROWS, k)), np.zeros((2, k, k)),
+    return (np.zeros((N_F_ROWS, nc)), np.zeros((4, nc, nc)), np.zeros((N_S_ROWS, k)), np.zeros((4, k, k)),
             np.zeros((big, big)), np.zeros((2, big)), np.zeros((2, big), dtype=np.int64))
 
 
 # ---------------------------------------------------------------------------------------------------------
 # linear algebra on the leading (m, m) block of preallocated buffers
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def cholesky_solve(H, rhs, m, x, L, s):
     """Solve H x = rhs for symmetric positive definite H (leading m x m block), with Jacobi scaling.
 
@@ -109,7 +111,7 @@ def cholesky_solve(H, rhs, m, x, L, s):
     return True
 
 
-@njit(cache=True)
+@kernel
 def lu_solve(M, rhs, m, x, piv):
     """Solve M x = rhs (leading m x m block; M and rhs are overwritten) by Gaussian elimination with partial
     pivoting. Returns False when a pivot is zero to working precision or the answer is not finite."""
@@ -157,7 +159,7 @@ def lu_solve(M, rhs, m, x, piv):
 # ---------------------------------------------------------------------------------------------------------
 # standard Gibbs energies g0_i(T) = G0_i(T) / (R T) from a quintic Hermite table
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True)
+@kernel
 def g0_into(T, u_lo, h, table, out):
     """g0_i(T) by quintic Hermite interpolation in u = ln T of ``table[k, 0:3, i]`` = (g, dg/du, d2g/du2) at the
     nodes u_k = u_lo + k h (built and checked against the data layer by hipeq.solvers._tables)."""
@@ -185,7 +187,7 @@ def g0_into(T, u_lo, h, table, out):
                   + h01 * table[k + 1, 0, i] + h * h11 * table[k + 1, 1, i] + hh * h21 * table[k + 1, 2, i])
 
 
-@njit(cache=True)
+@kernel
 def adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k_tab):
     """Shift g0 by the least change that makes -nu g0 equal the user's ln K:
     g0 <- g0 + nu^+ (ln K_table - ln K_user), with nu nu^+ = I (nu has full row rank)."""
@@ -206,11 +208,13 @@ def adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k_tab):
 # evaluation of a composition
 # ---------------------------------------------------------------------------------------------------------
 @njit(cache=True, inline='always')
-def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu):
+def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, W, neff, M, scratch):
     """Mole fractions, ln phi (per ``mode``) and mu_i/RT of the active species at amounts n.
 
     Returns (n_T, Z, root, G/RT) with G/RT = sum_i n_i mu_i / RT. Inactive species (absent and not formable)
     get y_i = 0 and mu_i = 0. When mode == FROZEN_PHI the buffer ``ln_phi`` is used as it is and Z = 1.
+    WITH_JACOBIAN fills ``jac`` (nc x nc); WITH_REDUCED fills the leading neff x neff block of ``M`` with
+    W^T jac W (``jac`` is then scratch for the models that form it). ``scratch`` is a (2, nc) work array.
     """
     nc = n.shape[0]
     n_t = 0.0
@@ -220,8 +224,10 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
         y[i] = n[i] / n_t
     z = 1.0
     root = 0
-    if mode == WITH_JACOBIAN:
-        z, root = ln_phi_dn_tp(code, T, P, y, aij, bi, consts, ln_phi, jac)
+    if mode == WITH_REDUCED:
+        z, root = ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, ln_phi, M, jac, scratch)
+    elif mode == WITH_JACOBIAN:
+        z, root = ln_phi_dn_tp(code, T, P, y, aij, bi, consts, ln_phi, jac, scratch)
     elif mode == WITH_PHI:
         z, root = ln_phi_tp(code, T, P, y, aij, bi, consts, ln_phi)
     if root < 0:
@@ -237,7 +243,7 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
     return n_t, z, root, g
 
 
-@njit(cache=True)
+@kernel
 def reaction_residuals(nu, mu, frozen, out):
     """Residual of each equilibrium condition, sum_i nu_ki mu_i / RT
     = sum_i nu_ki (ln y_i + ln phi_i) + (sum_i nu_ki) ln(P/P0) - ln K_k; 0 for reactions that cannot proceed."""
@@ -253,7 +259,7 @@ def reaction_residuals(nu, mu, frozen, out):
     return worst
 
 
-@njit(cache=True)
+@kernel
 def element_residuals(A, n, n0, out):
     """(sum_i a_ei n_i - b_e) / b_e with b_e = sum_i a_ei n0_i (or / sum_e b_e for an element absent from the
     feed); returns the largest magnitude."""

@@ -17,7 +17,8 @@ import math
 import numpy as np
 from numba import njit, prange
 
-from hipeq.models._kernels import MODEL_CUBIC, R, ROOT_LIQUID, tdep_into
+from hipeq._jit import kernel
+from hipeq.models._kernels import MODEL_CUBIC, R, ROOT_LIQUID, tparams_into
 from hipeq.solvers._common import (CONVERGED, F_BI, F_DBI, F_G0, F_LNPHI, F_MU, F_N, F_N0_PREV, F_N_PREV, F_Y,
                                    INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE, PRESSURE_NOT_FOUND, S_LNK,
                                    S_XI, S_XI_PREV, S_XI_START, adjust_g0, element_residuals, g0_into, make_work)
@@ -41,7 +42,7 @@ METHOD_EXTENT = 0
 METHOD_GIBBS = 1
 
 
-@njit(cache=True)
+@kernel
 def _cold_start(n0, active, direction, xdir, nr, F, S):
     """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps half the largest step keeping n >= 0
     (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
@@ -62,7 +63,7 @@ def _cold_start(n0, active, direction, xdir, nr, F, S):
         S[S_XI, r] = eps * xdir[r]
 
 
-@njit(cache=True)
+@kernel
 def _start_from_extents(n0, nu, active, F, S):
     """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
     nc = n0.shape[0]
@@ -91,7 +92,7 @@ def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, 
                        coupled, tol_g, max_iter, F, J, S, SM, M, KV, IV)
 
 
-@njit(cache=True)
+@kernel
 def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
                      tol, tol_g, tol_v, max_iter, F, J, S, SM, M, KV, IV):
     """Outer safeguarded secant on s = ln P for ln(n_T Z R T / P) = ln V. Returns (status, iterations,
@@ -171,7 +172,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     return PRESSURE_NOT_FOUND, total, MAX_PRESSURE_STEPS, n_t, z, root, math.exp(s)
 
 
-@njit(cache=True)
+@kernel
 def solve_state(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
                 pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
                 T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T, warm, work, out_species, out_reactions,
@@ -191,7 +192,7 @@ def solve_state(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
     g0 = F[F_G0]
     ln_k = S[S_LNK]
     if new_T:
-        tdep_into(code, T, comp, consts, kmat, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
+        tparams_into(code, T, comp, consts, kmat, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
         g0_into(T, u_lo, t_h, table, g0)
         if opts_i[OPT_USER_LNK] == 0:
             for r in range(nr):
@@ -327,6 +328,68 @@ def solve_one(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
     return status, iters, outer, root, liquid
 
 
+@kernel
+def _solve_chunk(first, last, code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+                 pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+                 T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, order,
+                 out_species, out_reactions, element_res, out_state, out_ints, liquid, work):
+    """States order[first:last] one after the other with one set of work buffers, each warm-started from the
+    previous converged one of the same pattern (see ``solve_many``)."""
+    nc = N0.shape[1]
+    empty = opts_f[0:0]
+    no = first < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
+    last_T = -1.0
+    warm = False
+    last_pat = -1
+    for j in range(first, last):
+        k = order[j]
+        if valid[k] == 0:
+            for i in range(nc):
+                out_species[k, 0, i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
+                out_species[k, 1, i] = 0.0
+            out_reactions[k, :, :] = 0.0
+            element_res[k, :] = 0.0
+            fixed_volume = opts_i[OPT_FIXED_VOLUME] != 0
+            ok = math.isfinite(PV[k])
+            out_state[k, 0] = PV[k] if (ok and not fixed_volume) else 0.0
+            out_state[k, 1] = PV[k] if (ok and fixed_volume) else 0.0
+            out_state[k, 2] = 0.0
+            out_ints[k, 0] = INVALID_INPUT
+            out_ints[k, 1] = 0
+            out_ints[k, 2] = 0
+            out_ints[k, 3] = -1
+            liquid[k] = False
+            continue
+        pat = pats[k]
+        user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
+        new_T = T[k] != last_T
+        use_warm = warm and pat == last_pat and opts_i[OPT_WARM] != 0
+        st, it, ou, P, V, z, root, liq = solve_state(
+            code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+            pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+            T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, new_T, use_warm, work, out_species[k],
+            out_reactions[k], element_res[k])
+        last_T = T[k]
+        if st != CONVERGED and use_warm:
+            st, it2, ou2, P, V, z, root, liq = solve_state(
+                code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
+                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
+                T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, no, no, work, out_species[k],
+                out_reactions[k], element_res[k])
+            it += it2
+            ou += ou2
+        warm = st == CONVERGED
+        last_pat = pat
+        out_state[k, 0] = P
+        out_state[k, 1] = V
+        out_state[k, 2] = z
+        out_ints[k, 0] = st
+        out_ints[k, 1] = it
+        out_ints[k, 2] = ou
+        out_ints[k, 3] = root
+        liquid[k] = liq
+
+
 @njit(cache=True, parallel=True)
 def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
@@ -344,55 +407,7 @@ def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
     n_chunks = (n + chunk - 1) // chunk
     for c in prange(n_chunks):
         work = make_work(nc, nr, max(A.shape[0], pg_Q.shape[1]))
-        empty = np.zeros(0)
-        no = c < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
-        last_T = -1.0
-        warm = False
-        last_pat = -1
-        for j in range(c * chunk, min(n, (c + 1) * chunk)):
-            k = order[j]
-            if valid[k] == 0:
-                for i in range(nc):
-                    out_species[k, 0, i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
-                    out_species[k, 1, i] = 0.0
-                out_reactions[k, :, :] = 0.0
-                element_res[k, :] = 0.0
-                fixed_volume = opts_i[OPT_FIXED_VOLUME] != 0
-                ok = math.isfinite(PV[k])
-                out_state[k, 0] = PV[k] if (ok and not fixed_volume) else 0.0
-                out_state[k, 1] = PV[k] if (ok and fixed_volume) else 0.0
-                out_state[k, 2] = 0.0
-                out_ints[k, 0] = INVALID_INPUT
-                out_ints[k, 1] = 0
-                out_ints[k, 2] = 0
-                out_ints[k, 3] = -1
-                liquid[k] = False
-                continue
-            pat = pats[k]
-            user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
-            new_T = T[k] != last_T
-            use_warm = warm and pat == last_pat and opts_i[OPT_WARM] != 0
-            st, it, ou, P, V, z, root, liq = solve_state(
-                code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-                T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, new_T, use_warm, work, out_species[k],
-                out_reactions[k], element_res[k])
-            last_T = T[k]
-            if st != CONVERGED and use_warm:
-                st, it2, ou2, P, V, z, root, liq = solve_state(
-                    code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-                    pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-                    T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, no, no, work, out_species[k],
-                    out_reactions[k], element_res[k])
-                it += it2
-                ou += ou2
-            warm = st == CONVERGED
-            last_pat = pat
-            out_state[k, 0] = P
-            out_state[k, 1] = V
-            out_state[k, 2] = z
-            out_ints[k, 0] = st
-            out_ints[k, 1] = it
-            out_ints[k, 2] = ou
-            out_ints[k, 3] = root
-            liquid[k] = liq
+        _solve_chunk(c * chunk, min(n, (c + 1) * chunk), code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv,
+                     A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N,
+                     pg_nnull, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, order, out_species, out_reactions,
+                     element_res, out_state, out_ints, liquid, work)

@@ -30,10 +30,11 @@ from __future__ import annotations
 
 from numba import njit
 
-from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY, F_Y,
-                                   F_Y_TRY, FROZEN_PHI, J_JAC, J_JAC_TRY, MAX_ITERATIONS, NO_PHYSICAL_STATE,
-                                   S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, STALLED, WITH_JACOBIAN,
-                                   WITH_PHI, cholesky_solve, evaluate)
+from hipeq._jit import kernel
+from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY,
+                                   F_SCRATCH, F_Y, F_Y_TRY, FROZEN_PHI, J_JAC, MAX_ITERATIONS, NO_PHYSICAL_STATE,
+                                   S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, SM_M, SM_M_TRY, STALLED,
+                                   WITH_PHI, WITH_REDUCED, cholesky_solve, evaluate)
 
 FRACTION_TO_BOUNDARY = 0.99
 ARMIJO = 1e-4
@@ -56,7 +57,8 @@ def _gradient(W, mu, active, neff, grad):
 
 
 @njit(cache=True, inline='always')
-def _hessian(W, n, n_t, jac, with_phi, active, neff, H):
+def _hessian(W, n, n_t, M, with_phi, active, neff, H):
+    """H = W^T diag(1/n) W - (W^T 1)(1^T W)/n_T [+ M/n_T, M = W^T (n_T d ln phi/d n) W when with_phi]."""
     nc = W.shape[0]
     for t in range(neff):
         for u in range(t + 1):
@@ -70,34 +72,29 @@ def _hessian(W, n, n_t, jac, with_phi, active, neff, H):
                     su += W[i, u]
             v -= st * su / n_t
             if with_phi:
-                q = 0.0
-                for i in range(nc):
-                    if W[i, t] != 0.0:
-                        for j in range(nc):
-                            q += W[i, t] * jac[i, j] * W[j, u]
-                v += q / n_t
+                v += M[t, u] / n_t
             H[t, u] = v
             H[u, t] = v
 
 
 @njit(cache=True, inline='always')
 def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, n_t, z, g, views):
-    """One damped Newton step from the current point (n, y, ln phi, mu, jac in ``views``; grad holds the
-    gradient). On success the accepted point replaces the current one and (-1, n_T, Z, root, G) is returned;
+    """One damped Newton step from the current point (n, y, ln phi, mu and M = W^T J W in ``views``; grad holds
+    the gradient). On success the accepted point replaces the current one and (-1, n_T, Z, root, G) is returned;
     otherwise a status code. In FROZEN_PHI mode ln phi is left as it is (the nested scheme's inner loop) and the
     ideal-solution Hessian is used; otherwise the Hessian includes the ln phi derivatives (the ideal part alone
     if that is not positive definite). In WITH_PHI mode the trial point is evaluated without the derivatives and
     the previous ones are kept (a chord step near the answer).
     """
-    n, y, ln_phi, mu, jac, grad, dn, rhs, d, H, L, scale_v, n_try, y_try, ln_phi_try, jac_try, mu_try = views
+    n, y, ln_phi, mu, M, grad, dn, rhs, d, H, L, scale_v, n_try, y_try, ln_phi_try, M_try, mu_try, jac, scr = views
     nc = W.shape[0]
     use_jac = mode != FROZEN_PHI  # the Hessian includes the (current or previous) ln phi derivatives
     for t in range(neff):
         rhs[t] = -grad[t]
-    _hessian(W, n, n_t, jac, use_jac, active, neff, H)
+    _hessian(W, n, n_t, M, use_jac, active, neff, H)
     ok = cholesky_solve(H, rhs, neff, d, L, scale_v)
     if not ok and use_jac:
-        _hessian(W, n, n_t, jac, False, active, neff, H)
+        _hessian(W, n, n_t, M, False, active, neff, H)
         ok = cholesky_solve(H, rhs, neff, d, L, scale_v)
     if not ok:
         return SINGULAR, n_t, z, 0, g
@@ -130,7 +127,7 @@ def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, 
             for i in range(nc):
                 ln_phi_try[i] = ln_phi[i]
         nt_t, z_t, root_t, g_t = evaluate(mode, code, T, P, ln_p, n_try, active, g0, aij, bi, consts, y_try,
-                                          ln_phi_try, jac_try, mu_try)
+                                          ln_phi_try, jac, mu_try, W, neff, M_try, scr)
         if root_t < 0:
             invalid += 1
             alpha *= 0.5
@@ -141,10 +138,10 @@ def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, 
                 y[i] = y_try[i]
                 ln_phi[i] = ln_phi_try[i]
                 mu[i] = mu_try[i]
-            if mode == WITH_JACOBIAN:
-                for i in range(nc):
-                    for j in range(nc):
-                        jac[i, j] = jac_try[i, j]
+            if mode == WITH_REDUCED:
+                for t in range(neff):
+                    for u in range(neff):
+                        M[t, u] = M_try[t, u]
             for r in range(Zb.shape[0]):
                 v = 0.0
                 for t in range(neff):
@@ -159,7 +156,7 @@ def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, 
     return STALLED, n_t, z, 0, g
 
 
-@njit(cache=True)
+@kernel
 def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, coupled, tol, max_iter,
                  F, J, S, SM):
     """Solve the equilibrium conditions in the reduced extents from the start in row F_N (amounts, positive on
@@ -172,15 +169,18 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
     y = F[F_Y]
     ln_phi = F[F_LNPHI]
     mu = F[F_MU]
+    M = SM[SM_M]
     jac = J[J_JAC]
+    scr = F[F_SCRATCH:F_SCRATCH + 2]
     grad = S[S_GRAD]
-    views = (n, y, ln_phi, mu, jac, grad, F[F_DN], S[S_RHS], S[S_D], SM[SM_H], SM[SM_L], S[S_SCALE], F[F_N_TRY],
-             F[F_Y_TRY], F[F_LNPHI_TRY], J[J_JAC_TRY], F[F_MU_TRY])
-    first = WITH_JACOBIAN if coupled else WITH_PHI
-    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu)
+    views = (n, y, ln_phi, mu, M, grad, F[F_DN], S[S_RHS], S[S_D], SM[SM_H], SM[SM_L], S[S_SCALE], F[F_N_TRY],
+             F[F_Y_TRY], F[F_LNPHI_TRY], SM[SM_M_TRY], F[F_MU_TRY], jac, scr)
+    first = WITH_REDUCED if coupled else WITH_PHI
+    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, W, neff,
+                               M, scr)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
-    mode = WITH_JACOBIAN if coupled else FROZEN_PHI
+    mode = WITH_REDUCED if coupled else FROZEN_PHI
     inner_tol = 0.1 * tol
     iterations = 0
     outer = 0
@@ -189,7 +189,7 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
         gmax = _gradient(W, mu, active, neff, grad)
         if inner and (gmax <= inner_tol or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
-                                       jac, mu)
+                                       jac, mu, W, neff, M, scr)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False

@@ -32,7 +32,9 @@ import math
 
 from numba import njit
 
-from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_MU, F_N, F_N_TRY, F_R, F_Y, F_Y_TRY, FROZEN_PHI,
+from hipeq._jit import kernel
+from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_MU, F_N, F_N_TRY, F_R, F_SCRATCH, F_Y, F_Y_TRY,
+                                   FROZEN_PHI,
                                    IV_IDX, IV_PIV, J_JAC, J_JAC_TRY,
                                    KV_RHS, KV_SOL, MAX_ITERATIONS, NO_PHYSICAL_STATE, S_B, S_EBAL, S_LAM, S_RHS,
                                    S_SCALE, SINGULAR, SM_H, SM_L, WITH_JACOBIAN, WITH_PHI, cholesky_solve,
@@ -191,7 +193,7 @@ def _update(neq, n, n_t, m, S, KV, IV):
     return alpha
 
 
-@njit(cache=True)
+@kernel
 def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
                 F, J, S, SM, M, KV, IV):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
@@ -215,8 +217,10 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     mu = F[F_MU]
     r = F[F_R]
     jac = J[J_JAC]
+    scratch = F[F_SCRATCH:F_SCRATCH + 2]
     first = WITH_JACOBIAN if coupled else WITH_PHI
-    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu)
+    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, jac, 0,
+                               jac, scratch)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
     if not _fit_potentials(Q, neq, n, mu, active, S, SM):
@@ -230,7 +234,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
         rmax, emax = _residuals(Q, neq, n, mu, active, r, S, bscale)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
-                                       jac, mu)
+                                       jac, mu, jac, 0, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
@@ -251,7 +255,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
         _update(neq, n, n_t, m, S, KV, IV)
         iterations += 1
         n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
-                                           mu)
+                                           mu, jac, 0, jac, scratch)
         if coupled:
             z = z_new
             root = root_new
