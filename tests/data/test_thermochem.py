@@ -159,3 +159,17 @@ def test_compiled_polynomial_and_constant_forms():
         assert s == pytest.approx(rec.S0 + 28.0 * np.log(T / 298.15) + 0.004 * (T - 298.15), rel=1e-12)
     finally:
         reset_registry()
+
+
+def test_thread_pool_and_single_thread_profiles_agree():
+    """Above PARALLEL_MIN_ROWS the profiles run on numba's thread pool, below on one thread: the same numbers."""
+    from hipeq.data.thermochem import PARALLEL_MIN_ROWS, standard_enthalpies, standard_entropies
+
+    names = ["N2", "H2", "NH3", "Ar", "CH4"]
+    T = np.linspace(300.0, 1500.0, PARALLEL_MIN_ROWS // len(names) + 7)  # one call on the pool
+    chunks = np.array_split(T, 400)  # ~50 temperatures per call: single thread
+    assert T.size * len(names) >= PARALLEL_MIN_ROWS > max(c.size for c in chunks) * len(names)
+    np.testing.assert_array_equal(standard_enthalpies(names, T),
+                                  np.concatenate([standard_enthalpies(names, c) for c in chunks]))
+    np.testing.assert_array_equal(standard_entropies(names, T),
+                                  np.concatenate([standard_entropies(names, c) for c in chunks]))

@@ -1,6 +1,7 @@
 """Data layer: species records, reactions and standard-state thermochemistry (ideal gas at 1 bar).
 
-Importing this package needs only numpy; the ``chemicals`` databanks are loaded at the first species look-up.
+Importing this package needs only numpy. The bundled species' databank constants are read from the stored file
+``bundled_constants.toml``; ``chemicals`` is imported only to look up a species that is not bundled.
 """
 from hipeq.data.reactions import (Reaction, check_independent, element_matrix, independent_reactions,
                                   stoichiometric_matrix)

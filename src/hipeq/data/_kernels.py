@@ -6,8 +6,9 @@ Private layer (arrays and scalars in, ``out`` buffers, no exceptions). The table
     [form, Hf, S0, c0, c1, c2, c3, c4, c5, c6, c7]
 
 ``form`` 0: TRC ideal-gas correlation, c0..c7 = a0..a7 (Cp/R = a0 + (a1/T^2) exp(-a2/T) + a3 y^2
-+ (a4 - a5/(T - a7)^2) y^8, y = (T - a7)/(T + a6); Thermodynamics Research Center 1994); integrals are the
-analytic ones of ``chemicals.heat_capacity`` (Kabo & Roganov 1994), compiled here as they are.
++ (a4 - a5/(T - a7)^2) y^8, y = (T - a7)/(T + a6); Thermodynamics Research Center 1994); Cp and its integrals are
+the closed forms of :mod:`hipeq.data.heat_capacity` (``trc_cp``, ``trc_integral``, ``trc_integral_over_T``;
+Kabo & Roganov 1994), compiled here as they are.
 ``form`` 1: polynomial Cp = sum_k c_k T^k [J/(mol K)], k <= 7.  ``form`` 2: constant Cp = c0 [J/(mol K)].
 
 H°(T) = Hf + ∫_298.15^T Cp dT [J/mol]; S°(T) = S0 + ∫_298.15^T Cp/T dT [J/(mol K)] (Kirchhoff's law).
@@ -16,10 +17,9 @@ from __future__ import annotations
 
 import math
 
-from chemicals.heat_capacity import TRCCp as _trc_cp_py
-from chemicals.heat_capacity import TRCCp_integral as _trc_h_py
-from chemicals.heat_capacity import TRCCp_integral_over_T as _trc_s_py
 from numba import njit, prange
+
+from hipeq.data.heat_capacity import trc_cp, trc_integral, trc_integral_over_T
 
 R = 8.314462618
 T_REF = 298.15
@@ -27,9 +27,9 @@ FORM_TRC, FORM_POLYNOMIAL, FORM_CONSTANT = 0, 1, 2
 COL_FORM, COL_HF, COL_S0, COL_C0 = 0, 1, 2, 3
 N_COLUMNS = 11
 
-_trc_cp = njit(cache=True)(_trc_cp_py)
-_trc_h = njit(cache=True)(_trc_h_py)
-_trc_s = njit(cache=True)(_trc_s_py)
+_trc_cp = njit(cache=True)(trc_cp)
+_trc_h = njit(cache=True)(trc_integral)
+_trc_s = njit(cache=True)(trc_integral_over_T)
 
 
 @njit(cache=True)
@@ -52,8 +52,8 @@ def _parts(T, row):
     form = int(row[COL_FORM])
     if form == FORM_TRC:
         a = row[COL_C0:COL_C0 + 8]
-        return (_trc_h(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7], 0.0),
-                _trc_s(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7], 0.0))
+        return (_trc_h(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7]),
+                _trc_s(T, a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7]))
     if form == FORM_POLYNOMIAL:
         return _poly_parts(T, row)
     c = row[COL_C0]
@@ -100,6 +100,14 @@ def gibbs_rt_into(T, table, out):
 
 @njit(cache=True, parallel=True)
 def profiles_batch(T, table, H, S):
-    """H°[k, i] and S°[k, i] for many temperatures T[k] [K]."""
+    """H°[k, i] and S°[k, i] for many temperatures T[k] [K], on the thread pool."""
     for k in prange(T.shape[0]):
+        enthalpy_entropy_into(T[k], table, H[k], S[k])
+
+
+@njit(cache=True)
+def profiles_serial(T, table, H, S):
+    """:func:`profiles_batch` on one thread: the same numbers, without starting the thread pool (short T arrays,
+    e.g. the ~500 nodes of a solver's g0 table)."""
+    for k in range(T.shape[0]):
         enthalpy_entropy_into(T[k], table, H[k], S[k])

@@ -3,8 +3,11 @@
 Three forms, all frozen and vectorised over temperature (scalar or ndarray):
 
 - :class:`TRCHeatCapacity`: the TRC form (Thermodynamics Research Center, "TRC Thermodynamic Tables -
-  Hydrocarbons/Non-hydrocarbons", as tabulated in ``chemicals.heat_capacity.TRC_gas_data``), evaluated with
-  the analytic functions ``TRCCp``, ``TRCCp_integral`` and ``TRCCp_integral_over_T`` of ``chemicals``.
+  Hydrocarbons/Non-hydrocarbons", coefficients as tabulated in ``chemicals.heat_capacity.TRC_gas_data``),
+  evaluated with the closed forms :func:`trc_cp`, :func:`trc_integral` and :func:`trc_integral_over_T` of this
+  module (plain Python on floats; :mod:`hipeq.data._kernels` compiles the same three functions). They reproduce
+  ``chemicals.heat_capacity.TRCCp``, ``TRCCp_integral`` and ``TRCCp_integral_over_T`` operation for operation
+  (tests/data/test_heat_capacity.py), so ``chemicals`` is not imported to evaluate a correlation.
 - :class:`ConstantHeatCapacity`: a constant, e.g. Cp = 5/2 R for a monatomic ideal gas (translational degrees of
   freedom only; exact until electronic excitation, far above 6000 K for Ar and He).
 - :class:`PolynomialHeatCapacity`: Cp = sum_k a_k T^k, for user overrides.
@@ -100,13 +103,110 @@ class _RangeMixin:
                                    f"got T_min={self.T_min}, T_max={self.T_max}")
 
 
+R_TRC = 8.31446261815324  # [J/(mol K)] R as the TRC closed forms use it (CODATA 2018 to double precision)
+
+
+def trc_cp(T: float, a0: float, a1: float, a2: float, a3: float, a4: float, a5: float, a6: float,
+           a7: float) -> float:
+    """TRC ideal-gas heat capacity Cp(T) [J/(mol K)] at one temperature T [K] (Thermodynamics Research Center
+    1994 correlation; Kabo & Roganov, "Thermodynamics of Organic Compounds in the Gas State", vol. II, 1994):
+
+        Cp/R = a0 + (a1/T^2) exp(-a2/T) + a3 y^2 + (a4 - a5/(T - a7)^2) y^8,
+        y = (T - a7)/(T + a6) for T > a7, else y = 0.
+
+    a0 [-], a1 [K^2], a2 [K], a3, a4 [-], a5 [K^2], a6, a7 [K]. At T = a7 (y = 0) the a5 term is dropped.
+    Plain float arithmetic (compiled unchanged by :mod:`hipeq.data._kernels`); no range check here.
+    """
+    if T <= a7:
+        y = 0.0
+    else:
+        y = (T - a7) / (T + a6)
+    T_inv = 1.0 / T
+    y2 = y * y
+    T_m_a7 = T - a7
+    if T == a7:
+        return R_TRC * (a0 + (a1 * T_inv * T_inv) * math.exp(-a2 * T_inv) + y2 * (a3 + a4 * y2 * y2 * y2))
+    return R_TRC * (a0 + (a1 * T_inv * T_inv) * math.exp(-a2 * T_inv)
+                    + y2 * (a3 + (a4 - a5 / (T_m_a7 * T_m_a7)) * y2 * y2 * y2))
+
+
+def trc_integral(T: float, a0: float, a1: float, a2: float, a3: float, a4: float, a5: float, a6: float,
+                 a7: float) -> float:
+    """Antiderivative H(T) = ∫ Cp dT [J/mol] of :func:`trc_cp` at T [K] (closed form of Kabo & Roganov 1994,
+    TRC correlation; integration constant zero, so only differences H(T2) - H(T1) mean anything):
+
+        H/R = a0 T + a1 exp(-a2/T)/a2 + (a6 + a7) [(2 a3 + 8 a4) ln(1 - y) + (a3 (1 + 1/(1 - y))
+              + a4 (7 + 1/(1 - y))) y + a4 (3 y^2 + 5/3 y^3 + y^4 + 3/5 y^5 + 1/3 y^6)
+              + 1/7 (a4 - a5/(a6 + a7)^2) y^7]      (the bracket is 0 for T <= a7)
+    """
+    if T <= a7:
+        y = 0.0
+    else:
+        y = (T - a7) / (T + a6)
+    y2 = y * y
+    y4 = y2 * y2
+    if T <= a7:
+        h = 0.0
+    else:
+        first = a6 + a7
+        one_m_y = 1.0 - y
+        second = (2.0 * a3 + 8.0 * a4) * math.log(one_m_y)
+        third = (a3 * (1.0 + 1.0 / one_m_y) + a4 * (7.0 + 1.0 / one_m_y)) * y
+        fourth = a4 * (3.0 * y2 + 5.0 / 3.0 * y * y2 + y4 + 0.6 * y4 * y + 1 / 3.0 * y4 * y2)
+        fifth = 1 / 7.0 * (a4 - a5 / (first * first)) * y4 * y2 * y
+        h = first * (second + third + fourth + fifth)
+    return (a0 + a1 * math.exp(-a2 / T) / (a2 * T) + h / T) * R_TRC * T
+
+
+def trc_integral_over_T(T: float, a0: float, a1: float, a2: float, a3: float, a4: float, a5: float, a6: float,
+                        a7: float) -> float:
+    """Antiderivative S(T) = ∫ Cp/T dT [J/(mol K)] of :func:`trc_cp` at T [K] (closed form of Kabo & Roganov
+    1994, TRC correlation; integration constant zero, so only differences S(T2) - S(T1) mean anything):
+
+        S/R = a0 ln T + a1/a2^2 (1 + a2/T) exp(-a2/T) + s,   with, for T > a7 (s = 0 otherwise),
+        s = (a3 + (a4 a7^2 - a5)/a6^2 (a7/a6)^4) (a7/a6)^2 ln z + (a3 + a4) ln((T + a6)/(a6 + a7))
+            + sum_(i=1..7) ((a4 a7^2 - a5)/a6^2 (-a6/a7)^i (a7/a6)^6 - a4) y^i / i
+            - (a3 (a6 + a7)/a6 + a5 y^6/(7 a7 (a6 + a7))) y,     z = T (a6 + a7)/(a7 (T + a6)).
+    """
+    if T <= a7:
+        y = 0.0
+    else:
+        y = (T - a7) / (T + a6)
+    a6_inv = 1.0 / a6
+    x3 = a7 + a6
+    z = T * x3 / (a7 * (T + a6))
+    if T <= a7:
+        s = 0.0
+    else:
+        a72 = a7 * a7
+        a62_inv = a6_inv * a6_inv
+        a7_a6 = a7 * a6_inv
+        a7_a6_2 = a7_a6 * a7_a6
+        a7_a6_4 = a7_a6_2 * a7_a6_2
+        x1 = (a4 * a72 - a5) * a62_inv
+        first = (a3 + ((a4 * a72 - a5) * a62_inv) * a7_a6_4) * a7_a6_2 * math.log(z)
+        second = (a3 + a4) * math.log((T + a6) / x3)
+        third = 0.0
+        y_pow = 1.0
+        a7_a6_pow = a7_a6_2 * a7_a6_4
+        na7_a6_inv = -1.0 / a7_a6
+        for i in range(1, 8):
+            y_pow = y_pow * y
+            a7_a6_pow *= na7_a6_inv
+            third += (x1 * a7_a6_pow - a4) * y_pow / i
+        fourth = -(a3 * a6_inv * x3 + a5 * y_pow / (7.0 * y * a7 * x3)) * y
+        s = first + second + third + fourth
+    x2 = a2 / T
+    return R_TRC * (a0 * math.log(T) + a1 / (a2 * a2) * (1.0 + x2) * math.exp(-x2) + s)
+
+
 @dataclass(frozen=True)
 class TRCHeatCapacity(_RangeMixin):
-    """TRC ideal-gas heat capacity (Thermodynamics Research Center 1994, via ``chemicals``).
+    """TRC ideal-gas heat capacity (Thermodynamics Research Center 1994; coefficients from ``chemicals``).
 
     Cp/R = a0 + (a1/T^2) exp(-a2/T) + a3 y^2 + (a4 - a5/(T - a7)^2) y^8,  y = (T - a7)/(T + a6) for T > a7,
-    else y = 0. Integrals are the closed forms of ``chemicals.heat_capacity.TRCCp_integral`` and
-    ``TRCCp_integral_over_T`` (their integration constants cancel in the differences taken here).
+    else y = 0. Integrals are the closed forms :func:`trc_integral` and :func:`trc_integral_over_T` (Kabo &
+    Roganov 1994; their integration constants cancel in the differences taken here).
     """
 
     coefficients: tuple[float, float, float, float, float, float, float, float]
@@ -127,22 +227,22 @@ class TRCHeatCapacity(_RangeMixin):
         flat = [fn(float(t), *a) for t in T.ravel()]
         return np.asarray(flat, dtype=float).reshape(T.shape)
 
+    def _difference(self, fn: Any, T1: ArrayLike, T2: ArrayLike, extrapolate: bool) -> float | np.ndarray:
+        t1, t2 = np.broadcast_arrays(self._check(T1, extrapolate), self._check(T2, extrapolate))
+        return _scalar_or_array(self._map(fn, t2) - self._map(fn, t1))
+
     def cp(self, T: ArrayLike, extrapolate: bool = False) -> float | np.ndarray:
-        """Ideal-gas heat capacity Cp(T) [J/(mol K)] at T [K]."""
-        from chemicals.heat_capacity import TRCCp
-        return _scalar_or_array(self._map(TRCCp, self._check(T, extrapolate)))
+        """Ideal-gas heat capacity Cp(T) [J/(mol K)] at T [K] (:func:`trc_cp`)."""
+        return _scalar_or_array(self._map(trc_cp, self._check(T, extrapolate)))
 
     def integral(self, T1: ArrayLike, T2: ArrayLike, extrapolate: bool = False) -> float | np.ndarray:
-        """Enthalpy change ∫_T1^T2 Cp dT [J/mol] between T1 and T2 [K] (broadcast)."""
-        from chemicals.heat_capacity import TRCCp_integral
-        t1, t2 = np.broadcast_arrays(self._check(T1, extrapolate), self._check(T2, extrapolate))
-        return _scalar_or_array(self._map(TRCCp_integral, t2) - self._map(TRCCp_integral, t1))
+        """Enthalpy change ∫_T1^T2 Cp dT [J/mol] between T1 and T2 [K] (broadcast; :func:`trc_integral`)."""
+        return self._difference(trc_integral, T1, T2, extrapolate)
 
     def integral_over_T(self, T1: ArrayLike, T2: ArrayLike, extrapolate: bool = False) -> float | np.ndarray:
-        """Entropy change ∫_T1^T2 Cp/T dT [J/(mol K)] between T1 and T2 [K] (broadcast)."""
-        from chemicals.heat_capacity import TRCCp_integral_over_T
-        t1, t2 = np.broadcast_arrays(self._check(T1, extrapolate), self._check(T2, extrapolate))
-        return _scalar_or_array(self._map(TRCCp_integral_over_T, t2) - self._map(TRCCp_integral_over_T, t1))
+        """Entropy change ∫_T1^T2 Cp/T dT [J/(mol K)] between T1 and T2 [K] (broadcast;
+        :func:`trc_integral_over_T`)."""
+        return self._difference(trc_integral_over_T, T1, T2, extrapolate)
 
 
 @dataclass(frozen=True)

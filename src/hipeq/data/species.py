@@ -2,8 +2,15 @@
 
 ``species(name)`` returns a frozen :class:`Species`. Look-up accepts the identifier (``"NH3"``), the common name or
 an alias, case-insensitive (``"ammonia"``, ``"dimethyl ether"``), the formula where it is unique (``"H3N"``;
-``"C2H6O"`` is ambiguous and raises, naming both) or the CAS number. The bundled list is ``species.toml``; the
-constants come, at first use, from the ``chemicals`` databanks (chemicals is imported only then):
+``"C2H6O"`` is ambiguous and raises, naming both) or the CAS number. The bundled list is ``species.toml``.
+
+Where the constants come from: the databank values below (all but Gf and the Cp of Ar and He) are ``chemicals``
+values. For the bundled species they are stored, with their source texts, in the generated file
+``bundled_constants.toml`` (written by ``python docs/tools/regenerate_bundled_constants.py`` from the installed
+chemicals and thermo, and checked against them by tests/data/test_bundled_constants.py), so building their records
+imports neither chemicals nor pandas. A species that is not bundled (registered with a CAS number only) is looked
+up live in ``chemicals``, imported then (:mod:`hipeq.data.databanks`). Either way the record and its ``sources``
+texts are the same:
 
 ================  =====================================================================================
 field             source (recorded per field in ``Species.sources``)
@@ -38,7 +45,8 @@ from pathlib import Path
 from types import MappingProxyType
 from typing import Any
 
-from hipeq.data.heat_capacity import HeatCapacity, TRCHeatCapacity, heat_capacity_from_mapping
+from hipeq.data.databanks import databank_value
+from hipeq.data.heat_capacity import HeatCapacity, heat_capacity_from_mapping
 from hipeq.errors import InputError, UnknownSpeciesError
 
 __all__ = ["Species", "AmbiguousSpeciesError", "species", "register_species", "load_species_file",
@@ -232,46 +240,6 @@ def _record(ident: str) -> Species:
     return _records[ident]
 
 
-def _databank(field: str, cas: str, elements: Mapping[str, int]) -> tuple[Any, str] | None:
-    """(value, source text) of ``field`` from the chemicals databanks, or None where it has none."""
-    if field == "molar_mass":
-        from chemicals.elements import molecular_weight
-        try:
-            return molecular_weight(dict(elements)) / 1000.0, "chemicals.elements.molecular_weight (IUPAC atomic weights)"
-        except (KeyError, ValueError):
-            return None
-    if not cas:
-        return None
-    if field in ("Tc", "Pc", "Vc", "Zc", "omega"):
-        from chemicals import acentric, critical
-        module = acentric if field == "omega" else critical
-        methods = getattr(module, f"{field}_methods")(cas)
-        if not methods:
-            return None
-        value = getattr(module, field)(cas, method=methods[0])
-        return value, f"chemicals.{module.__name__.split('.')[-1]}.{field}, method {methods[0]}"
-    if field == "Hf":
-        from chemicals import reaction
-        if "ATCT_G" not in reaction.Hfg_methods(cas):
-            return None
-        unc = reaction.Hfg_ATcT_data.loc[cas, "uncertainty"] if cas in reaction.Hfg_ATcT_data.index else 0
-        return reaction.Hfg(cas, method="ATCT_G"), f"ATcT 1.112 (chemicals method ATCT_G), ±{unc:g} J/mol"
-    if field == "S0":
-        from chemicals import reaction
-        if "CRC" not in reaction.S0g_methods(cas):
-            return None
-        return reaction.S0g(cas, method="CRC"), "CRC Handbook of Chemistry and Physics 2014 (chemicals method CRC)"
-    if field == "cp":
-        from chemicals.heat_capacity import TRC_gas_data
-        if cas not in TRC_gas_data.index:
-            return None
-        row = TRC_gas_data.loc[cas]
-        coeffs = tuple(float(row[f"a{k}"]) for k in range(8))
-        cp = TRCHeatCapacity(coeffs, float(row["Tmin"]), float(row["Tmax"]))  # type: ignore[arg-type]
-        return cp, f"TRC ideal-gas Cp (chemicals TRC_gas_data), {cp.T_min:g}-{cp.T_max:g} K"
-    return None
-
-
 def _number(ident: str, field: str, value: Any) -> float:
     try:
         number = float(value)
@@ -302,7 +270,7 @@ def _build(ident: str, fields: Mapping[str, Any], overrides: Mapping[str, str]) 
             values[field] = heat_capacity_from_mapping(raw) if field == "cp" else _number(ident, field, raw)
             sources[field] = overrides.get(field, "given")
         elif field not in ("Gf", "Vc", "Zc"):
-            found = _databank(field, cas, elements)
+            found = databank_value(field, cas, elements)
             if found is None or (field != "cp" and not math.isfinite(found[0])):
                 raise InputError(field, f"species {ident!r}: no value in the databanks for CAS {cas or '-'}; "
                                         "give it in an override")
@@ -327,7 +295,7 @@ def _complete_critical_volume(ident: str, values: dict[str, Any], sources: dict[
         return
     for field in ("Vc", "Zc"):
         if field not in values:
-            found = _databank(field, cas, elements)
+            found = databank_value(field, cas, elements)
             if found is None:
                 raise InputError(field, f"species {ident!r}: no value in the databanks; give Vc or Zc")
             values[field], sources[field] = _number(ident, field, found[0]), found[1]

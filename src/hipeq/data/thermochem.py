@@ -36,6 +36,9 @@ __all__ = ["P_STANDARD", "R", "T_REFERENCE", "standard_enthalpies", "standard_en
 P_STANDARD = 1e5  # [Pa] standard-state pressure (ideal gas at 1 bar)
 R = 8.314462618  # [J/(mol K)] molar gas constant (CODATA 2018, exact)
 METHODS = ("cp-integral", "van-t-hoff")
+# (temperatures x species) from which H°, S° are evaluated on numba's thread pool; below it one thread takes a few
+# ms at most (~0.1 us per value), less than starting the pool in a fresh process (~40 ms), e.g. for the g0 tables
+PARALLEL_MIN_ROWS = 20_000
 
 SpeciesList = Sequence[str | Species]
 Temperature = float | npt.ArrayLike
@@ -97,13 +100,14 @@ def _table(records: tuple[Species, ...]) -> np.ndarray:
 
 def _profiles(records: Sequence[Species], T: np.ndarray, extrapolate: bool) -> tuple[np.ndarray, np.ndarray]:
     """(H°, S°) arrays of shape T.shape + (n_species,), from the compiled core (ranges checked by the caller)."""
-    from hipeq.data._kernels import profiles_batch
+    from hipeq.data._kernels import profiles_batch, profiles_serial
 
     table = standard_state_table(records)
     flat = np.ascontiguousarray(T, dtype=float).ravel()
     H = np.empty((flat.size, len(records)))
     S = np.empty_like(H)
-    profiles_batch(flat, table, H, S)
+    kernel = profiles_batch if flat.size * len(records) >= PARALLEL_MIN_ROWS else profiles_serial
+    kernel(flat, table, H, S)
     return H.reshape(T.shape + (len(records),)), S.reshape(T.shape + (len(records),))
 
 

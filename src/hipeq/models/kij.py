@@ -10,8 +10,9 @@ Where the defaults come from (recorded per pair in ``KijAssignment.sources``):
 model          default k_ij
 =============  ====================================================================================
 PR, PR78       thermo's interaction-parameter databank, table ``'ChemSep PR'`` (ChemSep's PR kij,
-               looked up by CAS pair); a pair missing from it falls back to zero and is listed in
-               ``zero_pairs``
+               looked up by CAS pair; for pairs of bundled species from the stored copy in
+               ``hipeq/data/bundled_constants.toml``); a pair missing from it falls back to zero and is
+               listed in ``zero_pairs``
 SRK            zero. The databank has no SRK table; PR kij were regressed with the PR alpha function
                and volume dependence, and carrying them over to SRK is a guess we do not make silently.
                Pass ``kij=databank_kij_values(species)`` to use the PR values deliberately.
@@ -34,13 +35,12 @@ from typing import Any, Union
 
 import numpy as np
 
+from hipeq.data.databanks import DATABANK_TABLE, SOURCE_DATABANK, databank_kij_pair
 from hipeq.errors import InputError
 
 __all__ = ["KijAssignment", "KijInput", "assign_kij", "databank_kij", "databank_kij_values",
            "DATABANK_TABLE", "SOURCE_DATABANK", "SOURCE_USER", "SOURCE_ZERO"]
 
-DATABANK_TABLE = "ChemSep PR"
-SOURCE_DATABANK = f"thermo IPDB {DATABANK_TABLE!r}"
 SOURCE_USER = "user"
 SOURCE_ZERO = "default zero"
 KIJ_LIMIT = 1.0  # |k_ij| < 1 keeps (1 - k_ij) > 0, i.e. a positive cross attraction and T_cij > 0
@@ -65,16 +65,13 @@ def databank_kij(cas_a: str, cas_b: str) -> float | None:
     """k_ij [-] of a CAS pair in thermo's databank table 'ChemSep PR', or None when the pair is missing.
 
     Source: ChemSep's Peng-Robinson binary interaction parameters as distributed with thermo
-    (``thermo.interaction_parameters.IPDB``, table 'ChemSep PR'); symmetric in the pair.
+    (``thermo.interaction_parameters.IPDB``, table 'ChemSep PR'); symmetric in the pair. Pairs of bundled species
+    are read from the stored copy (``hipeq/data/bundled_constants.toml``, no thermo import); any other pair is
+    looked up in thermo itself (:func:`hipeq.data.databanks.databank_kij_pair`).
     """
     if not cas_a or not cas_b or cas_a == cas_b:
         return None
-    from thermo.interaction_parameters import IPDB  # ~0.2 s import, paid at the first model build only
-
-    pair = [cas_a, cas_b]
-    if not IPDB.has_ip_specific(DATABANK_TABLE, pair, "kij"):
-        return None
-    return float(IPDB.get_ip_specific(DATABANK_TABLE, pair, "kij"))
+    return databank_kij_pair(cas_a, cas_b)
 
 
 def databank_kij_values(species: Sequence[Any]) -> dict[Pair, float]:
