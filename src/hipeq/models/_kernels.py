@@ -234,8 +234,9 @@ def cubic_z(A, B, d1, d2):
     """Compressibility factor of the generic cubic at reduced parameters A = aP/(RT)^2, B = bP/(RT).
 
     Solves Z^3 + [(u - 1) B - 1] Z^2 + [A + w B^2 - u B - u B^2] Z - [A B + w B^2 + w B^3] = 0 with
-    u = delta1 + delta2, w = delta1 delta2 (trigonometric / Cardano solution, Newton-polished). Of several
-    roots above B the one with the lowest Gibbs energy is returned. Returns (Z, root code).
+    u = delta1 + delta2, w = delta1 delta2 (Cardano's solution, or the trigonometric one for three real roots,
+    Newton-polished; the smallest of three from the deflated quadratic). Of several roots above B the one with
+    the lowest Gibbs energy is returned. Returns (Z, root code).
     """
     u = d1 + d2
     w = d1 * d2
@@ -258,13 +259,17 @@ def cubic_z(A, B, d1, d2):
     arg = min(1.0, max(-1.0, arg))
     phi = math.acos(arg) / 3.0
     z_hi = _polish(r * math.cos(phi) + shift, c2, c1, c0)
-    z_lo = _polish(r * math.cos(phi + 2.0 * math.pi / 3.0) + shift, c2, c1, c0)
-    z_mid = _polish(r * math.cos(phi + 4.0 * math.pi / 3.0) + shift, c2, c1, c0)
-    if z_mid < z_lo:
-        z_lo = z_mid
+    # the other two roots from the deflated quadratic Z^2 + (c2 + Z_hi) Z + c1 + Z_hi (c2 + Z_hi) = 0: only the
+    # smallest can be a liquid-like phase, and it needs polishing only when it lies above B
+    s2 = c2 + z_hi
+    dq = s2 * s2 - 4.0 * (c1 + z_hi * s2)
+    z_lo = -0.5 * (s2 + math.sqrt(max(dq, 0.0)))
     if z_lo <= B:
         if z_hi <= B:
             return z_hi, ROOT_INVALID
+        return z_hi, ROOT_SINGLE
+    z_lo = _polish(z_lo, c2, c1, c0)
+    if z_lo <= B:
         return z_hi, ROOT_SINGLE
     if _g_of_root(z_lo, A, B, d1, d2) < _g_of_root(z_hi, A, B, d1, d2):
         return z_lo, ROOT_LIQUID

@@ -78,6 +78,13 @@ def cholesky_solve(H, rhs, m, x, L, s):
     s_i = 1 / sqrt(H_ii); the scaled matrix S H S has a unit diagonal, so a pivot below 1e-13 means "not
     positive definite (numerically)". Returns False then, and also for non-finite input.
     """
+    if m == 1:  # one independent reaction: the common case, without the loops
+        d = H[0, 0]
+        v = rhs[0] / d
+        if not (d > 0.0) or not math.isfinite(v):
+            return False
+        x[0] = v
+        return True
     for i in range(m):
         d = H[i, i]
         if not (d > 0.0) or not math.isfinite(d):
