@@ -172,15 +172,17 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     return PRESSURE_NOT_FOUND, total, MAX_PRESSURE_STEPS, n_t, z, root, math.exp(s)
 
 
-@kernel
-def solve_state(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-                T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T, warm, work, out_species, out_reactions,
-                element_res):
+@njit(cache=True, _nrt=False, inline='always')
+def solve_state(system, T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T, warm, work, out_species,
+                out_reactions, element_res):
     """Solve one state; writes the per-state outputs and returns (status, iterations, outer, P, V, Z, root,
     liquid_like). ``out_species`` rows: amounts, ln phi; ``out_reactions`` rows: extents, ln K, residuals.
     ``new_T``: recompute the temperature-dependent parameters; ``warm``: the work buffers hold a converged
-    previous state of the same pattern (rows F_N_PREV, F_N0_PREV, S_XI_PREV)."""
+    previous state of the same pattern (rows F_N_PREV, F_N0_PREV, S_XI_PREV). ``system`` is the tuple of the
+    system's arrays (see ``solve_many``); inlined into its callers (one call site each), so that the few dozen
+    arrays are not handed over per state."""
+    (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir,
+     pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull) = system
     F, J, S, SM, M, KV, IV = work
     nc = n0.shape[0]
     nr = nu.shape[0]
@@ -306,22 +308,24 @@ def solve_one(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
     iterations, outer, root, liquid_like); P, V, Z in ``scalars``."""
     nc = n0.shape[0]
     work = make_work(nc, nu.shape[0], max(A.shape[0], pg_Q.shape[1]))
+    system = (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir,
+              pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull)
     no = nc < 0  # run-time booleans, not literals: one compiled solve_state for every caller
-    yes = not no
-    status, iters, outer, P, V, z, root, liquid = solve_state(
-        code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-        pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-        T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, yes, no, work, out_species, out_reactions, element_res)
-    if status != CONVERGED and opts_i[OPT_GUESS] != 0:
-        cold = opts_i.copy()
-        cold[OPT_GUESS] = 0
-        status, iters2, outer2, P, V, z, root, liquid = solve_state(
-            code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-            pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-            T, PV, n0, pat, ln_k_user, guess, cold, opts_f, no, no, work, out_species, out_reactions,
-            element_res)
-        iters += iters2
-        outer += outer2
+    new_T = not no
+    options = opts_i
+    iters = 0
+    outer = 0
+    while True:  # one call site of the inlined solve_state
+        status, it, ou, P, V, z, root, liquid = solve_state(system, T, PV, n0, pat, ln_k_user, guess, options,
+                                                            opts_f, new_T, no, work, out_species, out_reactions,
+                                                            element_res)
+        iters += it
+        outer += ou
+        if status == CONVERGED or options[OPT_GUESS] == 0:
+            break
+        options = opts_i.copy()  # a failed start from the guess: once more from a cold start
+        options[OPT_GUESS] = 0
+        new_T = no
     scalars[0] = P
     scalars[1] = V
     scalars[2] = z
@@ -336,6 +340,8 @@ def _solve_chunk(first, last, code, comp, consts, kmat, u_lo, t_h, table, nu, nu
     """States order[first:last] one after the other with one set of work buffers, each warm-started from the
     previous converged one of the same pattern (see ``solve_many``)."""
     nc = N0.shape[1]
+    system = (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir,
+              pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull)
     empty = opts_f[0:0]
     no = first < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
     last_T = -1.0
@@ -362,22 +368,21 @@ def _solve_chunk(first, last, code, comp, consts, kmat, u_lo, t_h, table, nu, nu
             continue
         pat = pats[k]
         user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
-        new_T = T[k] != last_T
         use_warm = warm and pat == last_pat and opts_i[OPT_WARM] != 0
-        st, it, ou, P, V, z, root, liq = solve_state(
-            code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-            pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-            T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, new_T, use_warm, work, out_species[k],
-            out_reactions[k], element_res[k])
+        new_T = T[k] != last_T
+        it = 0
+        ou = 0
+        while True:  # one call site of the inlined solve_state
+            st, it1, ou1, P, V, z, root, liq = solve_state(system, T[k], PV[k], N0[k], pat, user, empty, opts_i,
+                                                           opts_f, new_T, use_warm, work, out_species[k],
+                                                           out_reactions[k], element_res[k])
+            it += it1
+            ou += ou1
+            if st == CONVERGED or not use_warm:
+                break
+            use_warm = no  # a failed warm start: once more from a cold start
+            new_T = no
         last_T = T[k]
-        if st != CONVERGED and use_warm:
-            st, it2, ou2, P, V, z, root, liq = solve_state(
-                code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-                T[k], PV[k], N0[k], pat, user, empty, opts_i, opts_f, no, no, work, out_species[k],
-                out_reactions[k], element_res[k])
-            it += it2
-            ou += ou2
         warm = st == CONVERGED
         last_pat = pat
         out_state[k, 0] = P
