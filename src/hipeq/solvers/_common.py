@@ -45,13 +45,13 @@ LOG_TINY = math.log(TINY)
 # ---------------------------------------------------------------------------------------------------------
 # F (N_F_ROWS, nc): per-species vectors
 F_N, F_N_TRY, F_Y, F_Y_TRY, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_DN, F_R, F_G0, F_N_PREV, F_N0_PREV, F_BI, \
-    F_DBI, F_SCRATCH = range(16)
-N_F_ROWS = 17  # F[F_SCRATCH : F_SCRATCH + 2] is the (2, nc) scratch of the model kernels
+    F_DBI, F_SCRATCH, _, F_G0_PREV = range(18)
+N_F_ROWS = 18  # F[F_SCRATCH : F_SCRATCH + 2] is the (2, nc) scratch of the model kernels
 # J (4, nc, nc)
 J_JAC, J_JAC_TRY, J_AIJ, J_DAIJ = range(4)
 # S (N_S_ROWS, k), k = max(n_reactions, n_element_rows, 1): small vectors
-S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START = range(11)
-N_S_ROWS = 11
+S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START, S_AUX = range(12)
+N_S_ROWS = 12  # S[S_AUX, 0]: ln(P/P0) of the previous converged state
 # SM (4, k, k): Newton matrix, its Cholesky factor, and the reduced ln phi Jacobian W^T J W (current, trial)
 SM_H, SM_L, SM_M, SM_M_TRY = range(4)
 # KV (2, nc + ne + 1) and IV (2, nc + ne + 1): the Newton system of the Gibbs minimisation
@@ -84,6 +84,8 @@ def cholesky_solve(H, rhs, m, x, L, s):
         if not (d > 0.0) or not math.isfinite(v):
             return False
         x[0] = v
+        s[0] = 1.0
+        L[0, 0] = math.sqrt(d)
         return True
     for i in range(m):
         d = H[i, i]
@@ -101,6 +103,13 @@ def cholesky_solve(H, rhs, m, x, L, s):
                 L[i, i] = math.sqrt(v)
             else:
                 L[i, j] = v / L[j, j]
+    return cholesky_resolve(L, s, rhs, m, x)
+
+
+@kernel
+def cholesky_resolve(L, s, rhs, m, x):
+    """Solve H x = rhs with the factor left by ``cholesky_solve`` (S H S = L L^T, S = diag(s)); False when the
+    answer is not finite (e.g. no factor has been formed yet)."""
     for i in range(m):  # forward: L z = s rhs
         v = rhs[i] * s[i]
         for k in range(i):
@@ -227,8 +236,9 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
     n_t = 0.0
     for i in range(nc):
         n_t += n[i]
+    inv_t = 1.0 / n_t
     for i in range(nc):
-        y[i] = n[i] / n_t
+        y[i] = n[i] * inv_t
     z = 1.0
     root = 0
     if mode == WITH_REDUCED:

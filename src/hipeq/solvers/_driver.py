@@ -19,10 +19,11 @@ from numba import njit, prange
 
 from hipeq._jit import kernel
 from hipeq.models._kernels import MODEL_CUBIC, R, ROOT_LIQUID, tparams_into
-from hipeq.solvers._common import (CONVERGED, F_BI, F_DBI, F_G0, F_LNPHI, F_MU, F_N, F_N0_PREV, F_N_PREV, F_Y,
-                                   INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE, PRESSURE_NOT_FOUND, S_LNK,
-                                   S_XI, S_XI_PREV, S_XI_START, adjust_g0, element_residuals, g0_into, make_work)
-from hipeq.solvers._extent import extent_solve
+from hipeq.solvers._common import (CONVERGED, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU, F_N, F_N0_PREV,
+                                   F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
+                                   PRESSURE_NOT_FOUND, S_AUX, S_D, S_LNK, S_RHS, S_SCALE, S_XI, S_XI_PREV,
+                                   S_XI_START, SM_L, adjust_g0, element_residuals, g0_into, make_work)
+from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
 P_STANDARD = 1e5  # [Pa]
@@ -237,6 +238,10 @@ def solve_state(system, T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T,
                 F[F_N, i] = F[F_N_PREV, i]
             for r in range(nr):
                 S[S_XI, r] = S[S_XI_PREV, r]
+            if method == METHOD_EXTENT and opts_i[OPT_FIXED_VOLUME] == 0:
+                predict_start(pe_W[pat], pe_Zb[pat], pe_neff[pat], active, g0, F[F_G0_PREV],
+                              math.log(PV) - LN_P_STANDARD - S[S_AUX, 0], SM[SM_L], S[S_SCALE], S[S_RHS], S[S_D],
+                              F[F_N], S[S_XI])
         elif method == METHOD_EXTENT:
             for r in range(nr):
                 S[S_XI, r] = S[S_XI_PREV, r] * n_feed / prev_total
@@ -295,6 +300,8 @@ def solve_state(system, T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T,
         for i in range(nc):
             F[F_N_PREV, i] = F[F_N, i]
             F[F_N0_PREV, i] = n0[i]
+            F[F_G0_PREV, i] = g0[i]
+        S[S_AUX, 0] = math.log(P) - LN_P_STANDARD
         for r in range(nr):
             S[S_XI_PREV, r] = S[S_XI, r]
     return status, iters, outer, P, V, z, root, liquid

@@ -34,12 +34,12 @@ from hipeq._jit import kernel
 from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY,
                                    F_SCRATCH, F_Y, F_Y_TRY, FROZEN_PHI, J_JAC, MAX_ITERATIONS, NO_PHYSICAL_STATE,
                                    S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, SM_M, SM_M_TRY, STALLED,
-                                   WITH_PHI, WITH_REDUCED, cholesky_solve, evaluate)
+                                   WITH_PHI, WITH_REDUCED, cholesky_resolve, cholesky_solve, evaluate)
 
 FRACTION_TO_BOUNDARY = 0.99
 ARMIJO = 1e-4
 MAX_BACKTRACKS = 40
-CHORD_SWITCH = 1e-7  # coupled scheme: below this residual the last Jacobian of ln phi is reused
+CHORD_SWITCH = 1e-5  # coupled scheme: below this residual the last Jacobian of ln phi is reused
 
 
 @njit(cache=True, inline='always')
@@ -154,6 +154,43 @@ def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, 
     if invalid == MAX_BACKTRACKS:
         return NO_PHYSICAL_STATE, n_t, z, -1, g
     return STALLED, n_t, z, 0, g
+
+
+@kernel
+def predict_start(W, Zb, neff, active, g0, g0_prev, dlnp, L, scale, rhs, d, n, xi):
+    """Move a warm start (the previous state's answer, in n and xi) by one Newton step for the change of
+    conditions: the gradient there is W^T (Delta g0 + Delta ln P) to first order, with the fugacity coefficients
+    held (their change is left to the solver), and the Newton matrix is the previous state's last factor
+    (``cholesky_resolve``). The step is cut to keep half of every amount; nothing happens without a usable
+    factor."""
+    nc = W.shape[0]
+    for t in range(neff):
+        v = 0.0
+        for i in range(nc):
+            if W[i, t] != 0.0:
+                v += W[i, t] * (g0[i] - g0_prev[i] + dlnp)
+        rhs[t] = -v
+    if not cholesky_resolve(L, scale, rhs, neff, d):
+        return
+    alpha = 1.0
+    for i in range(nc):
+        if active[i]:
+            v = 0.0
+            for t in range(neff):
+                v += W[i, t] * d[t]
+            if v < 0.0 and -v * alpha > 0.5 * n[i]:
+                alpha = 0.5 * n[i] / -v
+    for i in range(nc):
+        if active[i]:
+            v = 0.0
+            for t in range(neff):
+                v += W[i, t] * d[t]
+            n[i] += alpha * v
+    for r in range(Zb.shape[0]):
+        v = 0.0
+        for t in range(neff):
+            v += Zb[r, t] * d[t]
+        xi[r] += alpha * v
 
 
 @kernel
