@@ -1,7 +1,7 @@
 """Serial compiled loops over the solver's per-state pieces, to say where a state's time goes.
 
 Each loop runs on one thread, with scratch allocated once, and returns a checksum. They call hipeq's private
-kernels exactly as the driver does (``hipeq.solvers._common.evaluate``, ``g0_into``; ``tdep_into``), so a change
+kernels exactly as the driver does (``hipeq.solvers._common.evaluate``, ``g0_into``; ``tparams_into``), so a change
 of those signatures shows up here first; the benchmark that uses them reports a failure instead of a figure.
 """
 from __future__ import annotations
@@ -9,13 +9,13 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from hipeq.models._kernels import tdep_into
+from hipeq.models._kernels import tdep_into, tparams_into
 from hipeq.solvers._common import WITH_JACOBIAN, WITH_PHI, WITH_REDUCED, evaluate, g0_into
 
 
 @njit(cache=True)
 def loop_per_temperature(code, T, comp, consts, kmat, u_lo, h, table):
-    """tdep_into + g0_into per state: what a state at a new temperature pays once."""
+    """tparams_into + g0_into per state: what a state at a new temperature pays once (as the driver does)."""
     nc = comp.shape[0]
     aij = np.empty((nc, nc))
     daij = np.empty((nc, nc))
@@ -24,7 +24,7 @@ def loop_per_temperature(code, T, comp, consts, kmat, u_lo, h, table):
     g0 = np.empty(nc)
     acc = 0.0
     for k in range(T.shape[0]):
-        tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
+        tparams_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
         g0_into(T[k], u_lo, h, table, g0)
         acc += aij[0, 0] + g0[0]
     return acc
@@ -87,19 +87,19 @@ def make_solve_state_loop():
         empty = np.zeros(0)
         iterations = 0
         for k in range(n):
-            r = D.solve_state(*static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, False, work,
+            r = D.solve_state(static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, False, work,
                               out_species[k], out_reactions[k], element_res[k])
             iterations += r[1]
             if mode == 1:
-                D.solve_state(*static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, True, work,
+                D.solve_state(static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, True, work,
                               out_species[k], out_reactions[k], element_res[k])
         return iterations
 
     return loop
 
 
-SOLVE_STATE_TAIL = ["T", "PV", "n0", "pat", "ln_k_user", "guess", "opts_i", "opts_f", "new_T", "warm", "work",
-                    "out_species", "out_reactions", "element_res"]
+SOLVE_STATE_PARAMETERS = ["system", "T", "PV", "n0", "pat", "ln_k_user", "guess", "opts_i", "opts_f", "new_T",
+                          "warm", "work", "out_species", "out_reactions", "element_res"]
 
 
 def solve_state_arguments(many_args: tuple) -> dict | None:
@@ -111,11 +111,9 @@ def solve_state_arguments(many_args: tuple) -> dict | None:
 
     many = list(inspect.signature(D.solve_many.py_func).parameters)
     one = list(inspect.signature(D.solve_state.py_func).parameters)
-    if "T" not in many or "T" not in one:
+    if "T" not in many or one != SOLVE_STATE_PARAMETERS:
         return None
-    k_many, k_one = many.index("T"), one.index("T")
-    if many[:k_many] != one[:k_one] or one[k_one:] != SOLVE_STATE_TAIL:
-        return None
+    k_many = many.index("T")  # solve_state takes solve_many's leading (system) arrays as one tuple
     named = dict(zip(many, many_args))
     need = ("T", "PV", "N0", "pats", "opts_i", "opts_f", "out_species", "out_reactions", "element_res", "nu", "A",
             "pg_Q")

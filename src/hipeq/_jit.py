@@ -17,6 +17,18 @@ from numba import njit
 F = TypeVar("F", bound=Callable[..., Any])
 
 
+# IEEE-preserving subset of fast-math: fused multiply-add, reciprocal instead of division, reassociation and
+# signed-zero freedom. NaN and infinity keep their meaning (no 'nnan'/'ninf'), so the kernels' finiteness
+# checks (``math.isfinite``, ``not (x > 0.0)``) still catch a failed evaluation.
+FASTMATH = frozenset({"contract", "arcp", "reassoc", "nsz"})
+
+
 def kernel(fn: F) -> F:
-    """Compile ``fn`` as an allocation-free kernel: ``njit(cache=True, _nrt=False)``."""
-    return njit(cache=True, _nrt=False)(fn)
+    """Compile ``fn`` as an allocation-free kernel: ``njit(cache=True, _nrt=False, fastmath=FASTMATH)``."""
+    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH))(fn)
+
+
+def inline_kernel(fn: F) -> F:
+    """As :func:`kernel`, and compiled into each caller (numba IR inlining) instead of being called: for the small
+    pieces of the model evaluation, where handing over the arrays cost more than the arithmetic."""
+    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH), inline="always")(fn)

@@ -26,7 +26,7 @@ import math
 import numpy as np
 from numba import njit, prange
 
-from hipeq._jit import kernel
+from hipeq._jit import inline_kernel, kernel
 
 R = 8.314462618  # J/(mol K), CODATA 2018
 
@@ -212,7 +212,7 @@ def tparams_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
 # ---------------------------------------------------------------------------------------------------------
 # the cubic: roots
 # ---------------------------------------------------------------------------------------------------------
-@kernel
+@inline_kernel
 def _polish(z, c2, c1, c0):
     for _ in range(3):
         f = ((z + c2) * z + c1) * z + c0
@@ -223,13 +223,13 @@ def _polish(z, c2, c1, c0):
     return z
 
 
-@kernel
+@inline_kernel
 def _g_of_root(z, A, B, d1, d2):
     """Residual Gibbs energy over RT of the mixture at the root z (the same formula for every root)."""
     return z - 1.0 - math.log(z - B) - A / (B * (d1 - d2)) * math.log((z + d1 * B) / (z + d2 * B))
 
 
-@kernel
+@inline_kernel
 def cubic_z(A, B, d1, d2):
     """Compressibility factor of the generic cubic at reduced parameters A = aP/(RT)^2, B = bP/(RT).
 
@@ -279,7 +279,7 @@ def cubic_z(A, B, d1, d2):
 # ---------------------------------------------------------------------------------------------------------
 # the cubic mixture: ln phi, and derivatives from the reduced residual Helmholtz energy
 # ---------------------------------------------------------------------------------------------------------
-@kernel
+@inline_kernel
 def _cubic_mix_sums(y, aij, bi, si):
     """van der Waals one-fluid sums: si[i] = sum_j y_j a_ij; returns (a, b) = (sum_i y_i si[i], sum_i y_i b_i)."""
     nc = y.shape[0]
@@ -295,7 +295,7 @@ def _cubic_mix_sums(y, aij, bi, si):
     return a, b
 
 
-@kernel
+@inline_kernel
 def _cubic_core(T, P, y, aij, bi, consts, out, si):
     """ln phi_i of the cubic mixture into ``out`` (Michelsen & Mollerup 2007, ch. 3):
 
@@ -324,13 +324,13 @@ def _cubic_core(T, P, y, aij, bi, consts, out, si):
     return z, root, a, b, lq
 
 
-@kernel
+@inline_kernel
 def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
     z, root, _, _, _ = _cubic_core(T, P, y, aij, bi, consts, out, out)
     return z, root
 
 
-@kernel
+@inline_kernel
 def _helmholtz_parts(T, V, a, b, d1, d2, lq):
     """Derivatives of g and f of Michelsen & Mollerup (2007), ch. 3, at one mole, given
     lq = ln[(V + delta1 b)/(V + delta2 b)]: returns (g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB)."""
@@ -353,7 +353,7 @@ def _helmholtz_parts(T, V, a, b, d1, d2, lq):
     return g_V, g_B, g_VV, g_BV, g_BB, f, f_V, f_B, f_VV, f_BV, f_BB
 
 
-@kernel
+@inline_kernel
 def _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi):
     """Coefficients of n d ln phi_i / d n_j for the cubic at fixed T, P (Michelsen & Mollerup 2007, ch. 2-3):
 
@@ -405,7 +405,7 @@ def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
     return z, root
 
 
-@kernel
+@inline_kernel
 def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
     """ln phi_i and the reduced matrix M_tu = sum_ij W_it (n d ln phi_i / d n_j) W_ju for the columns t, u < neff
     of W, from the same coefficients as ``_cubic_ln_phi_dn`` without forming the nc x nc matrix:
@@ -537,7 +537,7 @@ def _pure_cubic(T, P, a, b, d1, d2):
     return z, root, _g_of_root(z, A, B, d1, d2)
 
 
-@kernel
+@inline_kernel
 def _shift(T, P, y, consts, out):
     """Volume translation (Peneloux, Rauzy & Freze 1982, Fluid Phase Equilib. 8, 7): v = v_cubic - c with
     c = sum_i y_i c_i leaves phase equilibria alone but shifts ln phi_i by -c_i P/(R T) and Z by -c P/(R T).
