@@ -31,6 +31,7 @@ LN_P_STANDARD = math.log(P_STANDARD)
 LIQUID_LIKE_REDUCED_VOLUME = 1.75  # v/b below this is liquid-like (our rule, DEVELOPERS.md)
 P_FLOOR = 1e-2  # [Pa] pressure limits of the sealed-vessel search
 P_CEILING = 1e10  # [Pa]
+P_MAX = 1e10  # [Pa] upper limit of a given P (the same sanity limit as the fugacity models)
 MAX_PRESSURE_STEPS = 80
 
 # integer options (opts_i)
@@ -474,3 +475,51 @@ def _scatter(order, spl, rel, ell, stl, itl, liql, out_species, out_reactions, e
         for a in range(4):
             out_ints[k, a] = itl[l, a]
         liquid[k] = liql[l]
+
+
+# ---------------------------------------------------------------------------------------------------------
+# batch preparation (one pass over the states each, no temporaries)
+# ---------------------------------------------------------------------------------------------------------
+@kernel
+def valid_states(T, PV, N0, T_min, T_max, P_max, fixed_volume, ok):
+    """ok[k] = T_min <= T[k] <= T_max, 0 < PV[k] finite (and <= P_max at fixed pressure), every feed amount
+    finite and >= 0 with a positive total."""
+    for k in range(T.shape[0]):
+        t = T[k]
+        pv = PV[k]
+        good = t >= T_min and t <= T_max and pv > 0.0 and math.isfinite(pv) and (fixed_volume or pv <= P_max)
+        total = 0.0
+        for i in range(N0.shape[1]):
+            v = N0[k, i]
+            if not (math.isfinite(v) and v >= 0.0):
+                good = False
+            total += v
+        ok[k] = good and total > 0.0
+
+
+@kernel
+def order_keys(T, PV, pats, bands, key):
+    """Sort key of ``hipeq.solvers._batch.neighbour_order``: (pattern, band of T) in the integer part, +-ln P
+    scaled to [0, 1] (sign alternating between bands, a snake path) in the fraction."""
+    n = T.shape[0]
+    t_lo = math.inf
+    t_hi = -math.inf
+    l_lo = math.inf
+    l_hi = -math.inf
+    for k in range(n):
+        if math.isfinite(T[k]):
+            t_lo = min(t_lo, T[k])
+            t_hi = max(t_hi, T[k])
+        if PV[k] > 0.0 and math.isfinite(PV[k]):
+            lp = math.log(PV[k])
+            l_lo = min(l_lo, lp)
+            l_hi = max(l_hi, lp)
+    t_span = max(t_hi - t_lo, 1e-300)
+    l_span = max(l_hi - l_lo, 1e-300)
+    for k in range(n):
+        t = (T[k] - t_lo) / t_span if math.isfinite(T[k]) else 0.0
+        p = (math.log(PV[k]) - l_lo) / l_span if (PV[k] > 0.0 and math.isfinite(PV[k])) else 0.0
+        band = min(int(t * bands), bands - 1)
+        if band % 2 == 1:
+            p = -p
+        key[k] = (pats[k] * bands + band) * 4.0 + (p + 1.0)

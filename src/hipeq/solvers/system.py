@@ -41,7 +41,7 @@ from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo
 
 __all__ = ["ReactionSystem"]
 
-P_MAX = 1e10  # [Pa] upper limit of P (the same sanity limit as the fugacity models)
+P_MAX = D.P_MAX  # [Pa] upper limit of P (the same sanity limit as the fugacity models)
 METHODS = ("extent", "gibbs")
 SCHEMES = ("coupled", "nested")
 DEFAULT_TOL = 1e-11
