@@ -214,12 +214,17 @@ def tparams_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
 # ---------------------------------------------------------------------------------------------------------
 @inline_kernel
 def _polish(z, c2, c1, c0):
+    """At most three Newton steps on Z^3 + c2 Z^2 + c1 Z + c0 = 0, stopping once a step is below 1e-14 Z (the
+    closed-form roots are good to about 1e-12, so the second step is usually the last)."""
     for _ in range(3):
         f = ((z + c2) * z + c1) * z + c0
         df = (3.0 * z + 2.0 * c2) * z + c1
         if df == 0.0:
             break
-        z -= f / df
+        step = f / df
+        z -= step
+        if abs(step) <= 1e-14 * abs(z):
+            break
     return z
 
 
