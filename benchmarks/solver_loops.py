@@ -55,7 +55,7 @@ def loop_evaluate(mode, code, T0, P, N, comp, consts, kmat, u_lo, h, table, W):
     jac = np.empty((nc, nc))
     mu = np.empty(nc)
     M = np.empty((W.shape[1], W.shape[1]))
-    scratch = np.empty((2, nc))
+    scratch = np.zeros((3, nc))
     active = np.ones(nc, dtype=np.bool_)
     tdep_into(code, T0, comp, consts, kmat, aij, bi, daij, dbi)
     g0_into(T0, u_lo, h, table, g0)

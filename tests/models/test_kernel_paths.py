@@ -1,8 +1,8 @@
 """The solver's fast kernel paths give the same numbers as the general kernels they stand in for.
 
 - ``tparams_into`` (a_ij from sqrt(a_i) products, no temperature derivatives) against ``tdep_into``;
-- ``ln_phi_reduced_tp`` (M = W^T J W formed without the nc x nc matrix for the cubic) against ``ln_phi_dn_tp``
-  reduced by hand; J itself is checked against thermo's ``dlnphis_dns`` in tests/validation/test_eos_vs_thermo.py
+- ``ln_phi_reduced_tp`` (M = W^T J W formed without the nc x nc matrix for the cubic) and ``ln_phi_hinted_tp``
+  (the cubic root by Newton's method from a given start) against ``ln_phi_dn_tp`` (M reduced by hand); J itself is checked against thermo's ``dlnphis_dns`` in tests/validation/test_eos_vs_thermo.py
   and by finite differences in tests/properties/test_eos_identities.py;
 - ``cubic_z`` (closed form with the small roots from the deflated quadratic, early-stopping polish) against
   ``numpy.roots`` (eigenvalues of the companion matrix, LAPACK) with the lowest-Gibbs-energy rule.
@@ -71,12 +71,20 @@ def test_reduced_jacobian_equals_the_full_one_reduced(config):
         full_phi, jac = np.empty(nc), np.empty((nc, nc))
         z_full, root_full = K.ln_phi_dn_tp(model.code, T, P, y, aij, bi, model.consts, full_phi, jac,
                                           np.empty((2, nc)))
-        phi, M = np.empty(nc), np.full((3, 3), np.nan)
-        z, root = K.ln_phi_reduced_tp(model.code, T, P, y, aij, bi, model.consts, W, neff, phi, M,
-                                      np.empty((nc, nc)), np.empty((2, nc)))
-        assert root == root_full
-        assert z == pytest.approx(z_full, rel=1e-14)
-        np.testing.assert_allclose(phi, full_phi, rtol=0.0, atol=1e-14)  # rounding only (fast-math reordering)
+        for hint in (0.0, 0.7 * z_full, 1.3 * z_full):  # the root from its closed form, or from a start
+            phi, M = np.empty(nc), np.full((3, 3), np.nan)
+            scratch = np.zeros((3, nc))
+            scratch[2, 0] = hint
+            z, root = K.ln_phi_reduced_tp(model.code, T, P, y, aij, bi, model.consts, W, neff, phi, M,
+                                          np.empty((nc, nc)), scratch)
+            assert root == root_full
+            assert z == pytest.approx(z_full, rel=1e-14)
+            np.testing.assert_allclose(phi, full_phi, rtol=0.0, atol=1e-14)  # rounding only (fast-math order)
+            hinted = np.empty(nc)
+            scratch[2, 0] = hint
+            z_phi, root_phi = K.ln_phi_hinted_tp(model.code, T, P, y, aij, bi, model.consts, hinted, scratch)
+            assert root_phi == root_full and z_phi == pytest.approx(z_full, rel=1e-14)
+            np.testing.assert_allclose(hinted, full_phi, rtol=0.0, atol=1e-14)
         expected = W[:, :neff].T @ jac @ W[:, :neff]
         scale = 1.0 + np.abs(W[:, :neff]).sum() ** 2 * np.abs(jac).max()
         np.testing.assert_allclose(M[:neff, :neff], expected, rtol=0.0, atol=1e-12 * scale,

@@ -243,6 +243,15 @@ def cubic_z(A, B, d1, d2):
     Newton-polished; the smallest of three from the deflated quadratic). Of several roots above B the one with
     the lowest Gibbs energy is returned. Returns (Z, root code).
     """
+    return cubic_z_from(A, B, d1, d2, 0.0)
+
+
+@inline_kernel
+def cubic_z_from(A, B, d1, d2, z_hint):
+    """As ``cubic_z``, but where the cubic has a single real root and ``z_hint`` > B (a solver's previous Z at a
+    nearby state), Newton's method from z_hint replaces the closed form: two or three steps instead of a square
+    root and two cube roots. Any point where the step falls below 1e-14 Z is then the one real root; if that
+    does not happen within eight steps, the closed form answers."""
     u = d1 + d2
     w = d1 * d2
     c2 = (u - 1.0) * B - 1.0
@@ -253,6 +262,19 @@ def cubic_z(A, B, d1, d2):
     disc = 0.25 * q * q + p * p * p / 27.0
     shift = -c2 / 3.0
     if disc > 0.0 or p >= 0.0:
+        if z_hint > B:
+            z = z_hint
+            for _ in range(8):
+                f = ((z + c2) * z + c1) * z + c0
+                df = (3.0 * z + 2.0 * c2) * z + c1
+                if df == 0.0:
+                    break
+                step = f / df
+                z -= step
+                if abs(step) <= 1e-14 * abs(z):
+                    if z > B:
+                        return z, ROOT_SINGLE
+                    break
         sd = math.sqrt(max(disc, 0.0))
         t = np.cbrt(-0.5 * q + sd) + np.cbrt(-0.5 * q - sd)
         z = _polish(t + shift, c2, c1, c0)
@@ -301,12 +323,13 @@ def _cubic_mix_sums(y, aij, bi, si):
 
 
 @inline_kernel
-def _cubic_core(T, P, y, aij, bi, consts, out, si):
+def _cubic_core(T, P, y, aij, bi, consts, out, si, z_hint):
     """ln phi_i of the cubic mixture into ``out`` (Michelsen & Mollerup 2007, ch. 3):
 
         ln phi_i = (b_i/b)(Z - 1) - ln(Z - B) - A/(B (delta1 - delta2)) (2 s_i/a - b_i/b) ln[(Z + delta1 B)/(Z + delta2 B)]
 
-    with s_i = sum_j y_j a_ij left in ``si`` (``si`` may be ``out`` itself when the caller needs only ln phi).
+    with s_i = sum_j y_j a_ij left in ``si`` (``si`` may be ``out`` itself when the caller needs only ln phi);
+    ``z_hint``: see ``cubic_z_from`` (0 for none).
     Returns (Z, root code, a, b, ln[(Z + delta1 B)/(Z + delta2 B)]) so that derivatives can reuse them."""
     nc = y.shape[0]
     d1 = consts[DELTA1]
@@ -315,7 +338,7 @@ def _cubic_core(T, P, y, aij, bi, consts, out, si):
     rt = R * T
     A = a * P / (rt * rt)
     B = b * P / rt
-    z, root = cubic_z(A, B, d1, d2)
+    z, root = cubic_z_from(A, B, d1, d2, z_hint)
     if root == ROOT_INVALID:
         for i in range(nc):
             out[i] = 0.0
@@ -331,7 +354,7 @@ def _cubic_core(T, P, y, aij, bi, consts, out, si):
 
 @inline_kernel
 def _cubic_ln_phi(T, P, y, aij, bi, consts, out):
-    z, root, _, _, _ = _cubic_core(T, P, y, aij, bi, consts, out, out)
+    z, root, _, _, _ = _cubic_core(T, P, y, aij, bi, consts, out, out, 0.0)
     return z, root
 
 
@@ -394,7 +417,7 @@ def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
     nc = y.shape[0]
     si = scratch[0]
     Pi = scratch[1]
-    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si, 0.0)
     if root == ROOT_INVALID:
         jac[:, :] = 0.0
         return z, root
@@ -422,9 +445,10 @@ def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
     nc = y.shape[0]
     si = scratch[0]
     Pi = scratch[1]
-    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si, scratch[2, 0])
     if root == ROOT_INVALID:
         return z, root
+    scratch[2, 0] = z
     F_nB, F_BD, F_BB, F_D, ipv = _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi)
     for t in range(neff):
         wb_t = 0.0
@@ -468,7 +492,7 @@ def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
     Returns (Z, root, F, T F_T) with F = A_res/(nRT) so that callers can form residual properties."""
     nc = y.shape[0]
     si = dT  # s_i = sum_j y_j a_ij; dT[i] is written only after the last read of si[i]
-    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si)
+    z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si, 0.0)
     if root == ROOT_INVALID:
         dT[:] = 0.0
         return z, root, 0.0, 0.0
@@ -618,11 +642,24 @@ def ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac, scratch):
 
 
 @kernel
+def ln_phi_hinted_tp(code, T, P, y, aij, bi, consts, out, scratch):
+    """As ``ln_phi_tp``; for the cubic the root starts from the Z of the previous call kept in scratch[2, 0]
+    (see ``cubic_z_from``), which is then updated. ``scratch`` is a (3, nc) work array."""
+    if code == MODEL_CUBIC:
+        z, root, _, _, _ = _cubic_core(T, P, y, aij, bi, consts, out, out, scratch[2, 0])
+        if root == ROOT_INVALID:
+            return z, root
+        scratch[2, 0] = z
+        return z - _shift(T, P, y, consts, out), root
+    return ln_phi_tp(code, T, P, y, aij, bi, consts, out)
+
+
+@kernel
 def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scratch):
     """ln phi_i and M = W^T J W (leading neff x neff block), J_ij = n d ln phi_i / d n_j at fixed T, P, for the
     columns of W (nc x >= neff): what a Newton step in reaction extents needs. The cubic forms M directly
     (``_cubic_ln_phi_reduced``, O(neff^2 nc^2) work and no nc x nc matrix); the other models form J in ``jac``
-    and reduce it. ``scratch`` is a (2, nc) work array."""
+    and reduce it. ``scratch`` is a (3, nc) work array (row 2: the root's start, see ``ln_phi_hinted_tp``)."""
     nc = y.shape[0]
     if code == MODEL_CUBIC:
         z, root = _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch)

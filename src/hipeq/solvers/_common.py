@@ -17,7 +17,7 @@ import numpy as np
 from numba import njit
 
 from hipeq._jit import kernel
-from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_reduced_tp, ln_phi_tp
+from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_reduced_tp
 
 # ---------------------------------------------------------------------------------------------------------
 # status codes (documented in docs/solvers.md and hipeq.solvers.result.STATUS_MESSAGES)
@@ -45,8 +45,10 @@ LOG_TINY = math.log(TINY)
 # ---------------------------------------------------------------------------------------------------------
 # F (N_F_ROWS, nc): per-species vectors
 F_N, F_N_TRY, F_Y, F_Y_TRY, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_DN, F_R, F_G0, F_N_PREV, F_N0_PREV, F_BI, \
-    F_DBI, F_SCRATCH, _, F_G0_PREV = range(18)
-N_F_ROWS = 18  # F[F_SCRATCH : F_SCRATCH + 2] is the (2, nc) scratch of the model kernels
+    F_DBI, F_SCRATCH, _, _, F_G0_PREV = range(19)
+# F[F_SCRATCH : F_SCRATCH + 3] is the (3, nc) scratch of the model kernels; F[F_SCRATCH + 2, 0] keeps the last
+# cubic root, the start for the next one
+N_F_ROWS = 19
 # J (4, nc, nc)
 J_JAC, J_JAC_TRY, J_AIJ, J_DAIJ = range(4)
 # S (N_S_ROWS, k), k = max(n_reactions, n_element_rows, 1): small vectors
@@ -230,7 +232,7 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
     Returns (n_T, Z, root, G/RT) with G/RT = sum_i n_i mu_i / RT. Inactive species (absent and not formable)
     get y_i = 0 and mu_i = 0. When mode == FROZEN_PHI the buffer ``ln_phi`` is used as it is and Z = 1.
     WITH_JACOBIAN fills ``jac`` (nc x nc); WITH_REDUCED fills the leading neff x neff block of ``M`` with
-    W^T jac W (``jac`` is then scratch for the models that form it). ``scratch`` is a (2, nc) work array.
+    W^T jac W (``jac`` is then scratch for the models that form it). ``scratch`` is a (3, nc) work array.
     """
     nc = n.shape[0]
     n_t = 0.0
@@ -246,7 +248,7 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
     elif mode == WITH_JACOBIAN:
         z, root = ln_phi_dn_tp(code, T, P, y, aij, bi, consts, ln_phi, jac, scratch)
     elif mode == WITH_PHI:
-        z, root = ln_phi_tp(code, T, P, y, aij, bi, consts, ln_phi)
+        z, root = ln_phi_hinted_tp(code, T, P, y, aij, bi, consts, ln_phi, scratch)
     if root < 0:
         return n_t, z, root, 0.0
     g = 0.0

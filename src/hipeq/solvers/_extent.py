@@ -208,7 +208,7 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
     mu = F[F_MU]
     M = SM[SM_M]
     jac = J[J_JAC]
-    scr = F[F_SCRATCH:F_SCRATCH + 2]
+    scr = F[F_SCRATCH:F_SCRATCH + 3]
     grad = S[S_GRAD]
     views = (n, y, ln_phi, mu, M, grad, F[F_DN], S[S_RHS], S[S_D], SM[SM_H], SM[SM_L], S[S_SCALE], F[F_N_TRY],
              F[F_Y_TRY], F[F_LNPHI_TRY], SM[SM_M_TRY], F[F_MU_TRY], jac, scr)

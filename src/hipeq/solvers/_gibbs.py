@@ -217,7 +217,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     mu = F[F_MU]
     r = F[F_R]
     jac = J[J_JAC]
-    scratch = F[F_SCRATCH:F_SCRATCH + 2]
+    scratch = F[F_SCRATCH:F_SCRATCH + 3]
     first = WITH_JACOBIAN if coupled else WITH_PHI
     n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, jac, 0,
                                jac, scratch)
