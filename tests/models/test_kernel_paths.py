@@ -5,7 +5,8 @@
   (the cubic root by Newton's method from a given start) against ``ln_phi_dn_tp`` (M reduced by hand); J itself is checked against thermo's ``dlnphis_dns`` in tests/validation/test_eos_vs_thermo.py
   and by finite differences in tests/properties/test_eos_identities.py;
 - ``cubic_z`` (closed form with the small roots from the deflated quadratic, early-stopping polish) against
-  ``numpy.roots`` (eigenvalues of the companion matrix, LAPACK) with the lowest-Gibbs-energy rule.
+  ``numpy.roots`` (eigenvalues of the companion matrix, LAPACK) with the lowest-Gibbs-energy rule, and
+  ``cubic_z_from`` (Newton's method from a start) against it from starts near every real root.
 
 Every model configuration is covered, including the quantum correction, E-PPR78 k_ij(T) and the Peneloux shift.
 """
@@ -113,4 +114,8 @@ def test_cubic_roots_match_numpy(deltas):
         best = min(above, key=lambda x: K._g_of_root(x, A, B, d1, d2))
         assert abs(z - best) <= 1e-12 * best, (A, B, z, best)
         checked[root] += 1
+        # from a start near any real root (or anywhere above B) the hinted solver must find the same root
+        for hint in (*(r * f for r in real for f in (0.97, 1.0, 1.03)), B * 1.001, 2.0):
+            z_h, root_h = K.cubic_z_from(A, B, d1, d2, float(hint))
+            assert root_h == root and abs(z_h - z) <= 1e-12 * z, (A, B, hint, z_h, z)
     assert all(count > 100 for count in checked.values()), checked

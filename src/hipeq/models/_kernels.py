@@ -248,10 +248,11 @@ def cubic_z(A, B, d1, d2):
 
 @inline_kernel
 def cubic_z_from(A, B, d1, d2, z_hint):
-    """As ``cubic_z``, but where the cubic has a single real root and ``z_hint`` > B (a solver's previous Z at a
-    nearby state), Newton's method from z_hint replaces the closed form: two or three steps instead of a square
-    root and two cube roots. Any point where the step falls below 1e-14 Z is then the one real root; if that
-    does not happen within eight steps, the closed form answers."""
+    """As ``cubic_z``, but with ``z_hint`` > B (a solver's previous Z at a nearby state) Newton's method from
+    z_hint replaces the closed form: two or three steps instead of cube roots or an arccosine. The point where
+    the step falls below 1e-14 Z is accepted when it lies above B and the other two roots (from the deflated
+    quadratic) are complex or at most B, i.e. when it is the model's only root; otherwise, or without
+    convergence in eight steps, the closed form answers."""
     u = d1 + d2
     w = d1 * d2
     c2 = (u - 1.0) * B - 1.0
@@ -261,20 +262,25 @@ def cubic_z_from(A, B, d1, d2, z_hint):
     q = 2.0 * c2 * c2 * c2 / 27.0 - c2 * c1 / 3.0 + c0
     disc = 0.25 * q * q + p * p * p / 27.0
     shift = -c2 / 3.0
-    if disc > 0.0 or p >= 0.0:
-        if z_hint > B:
-            z = z_hint
-            for _ in range(8):
-                f = ((z + c2) * z + c1) * z + c0
-                df = (3.0 * z + 2.0 * c2) * z + c1
-                if df == 0.0:
-                    break
-                step = f / df
-                z -= step
-                if abs(step) <= 1e-14 * abs(z):
-                    if z > B:
+    if z_hint > B:
+        z = z_hint
+        for _ in range(8):
+            f = ((z + c2) * z + c1) * z + c0
+            df = (3.0 * z + 2.0 * c2) * z + c1
+            if df == 0.0:
+                break
+            step = f / df
+            z -= step
+            if abs(step) <= 1e-14 * abs(z):
+                if z > B:
+                    # the other two roots from the deflated quadratic: complex, or both at or below B, leave z
+                    # as the only root of the model (else the closed form sorts the roots out)
+                    s2 = c2 + z
+                    dq = s2 * s2 - 4.0 * (c1 + z * s2)
+                    if dq < 0.0 or -0.5 * (s2 - math.sqrt(dq)) <= B:
                         return z, ROOT_SINGLE
-                    break
+                break
+    if disc > 0.0 or p >= 0.0:
         sd = math.sqrt(max(disc, 0.0))
         t = np.cbrt(-0.5 * q + sd) + np.cbrt(-0.5 * q - sd)
         z = _polish(t + shift, c2, c1, c0)
