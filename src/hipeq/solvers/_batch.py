@@ -55,13 +55,13 @@ class _InvalidReasons(Mapping[int, str]):
     """Reason text for an invalid state, computed on demand from the inputs kept in the result."""
 
     def __init__(self, system: ReactionSystem, T: np.ndarray, PV: np.ndarray, N0: np.ndarray, fixed_volume: bool,
-                 invalid: np.ndarray) -> None:
+                 valid: np.ndarray) -> None:
         self._args = (system, T, PV, N0, fixed_volume)
-        self._invalid = invalid
+        self._valid = valid  # uint8, 0 where the state was not solved
 
     def __getitem__(self, k: int) -> str:
         system, T, PV, N0, fixed_volume = self._args
-        if not self._invalid[k]:
+        if self._valid[k]:
             raise KeyError(k)
         reasons = []
         t = float(T[k])
@@ -80,15 +80,16 @@ class _InvalidReasons(Mapping[int, str]):
         return "; ".join(reasons)
 
     def __iter__(self):
-        return iter(np.flatnonzero(self._invalid).tolist())
+        return iter(np.flatnonzero(self._valid == 0).tolist())
 
     def __len__(self) -> int:
-        return int(np.count_nonzero(self._invalid))
+        return int(self._valid.size - np.count_nonzero(self._valid))
 
 
 def neighbour_order(T: np.ndarray, PV: np.ndarray, pats: np.ndarray) -> np.ndarray:
     """A permutation of the states that puts similar states next to each other, so that warm starts along a
-    chunk start close to the answer: grouped by zero-feed pattern, then a boustrophedon ("snake") path over about
+    chunk start close to the answer (``pats``: one pattern per state, or one for all): grouped by zero-feed
+    pattern, then a boustrophedon ("snake") path over about
     sqrt(n) bands of temperature, ordered by ln P (or ln V) within a band, alternating direction."""
     n = T.size
     if n < 64:
@@ -120,49 +121,53 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
     for j, arr in cols:
         N0[:, j] = np.broadcast_to(arr, shape).reshape(n)
     scalar_feed = all(arr.ndim == 0 for _, arr in cols)
-    # validity and feed patterns block by block, so that temporaries stay bounded by BLOCK (flat peak memory)
-    valid = np.empty(n, dtype=np.bool_)
-    pats = np.zeros(n, dtype=np.int64)
+    # validity (one compiled pass) and feed patterns (block by block, so that temporaries stay bounded by BLOCK):
+    # peak memory stays flat in the number of states
+    valid = np.empty(n, dtype=np.uint8)
     D.valid_states(Tf, PVf, N0, float(system.T_min), float(system.T_max), D.P_MAX, fixed_volume, valid)
-    for a in range(0, n, BLOCK):
-        b = min(n, a + BLOCK)
-        n0 = N0[a:b]
-        ok = valid[a:b]
-        if ok.any() and scalar_feed:  # one feed for every state: one pattern of zero amounts
-            pats[a:b] = system._pattern(int((n0[0] > 0.0) @ system._bits))
-        elif ok.any():
-            keys = (n0[ok] > 0.0) @ system._bits
-            unique, inverse = np.unique(keys, return_inverse=True)
-            ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
-            pats[a:b][ok] = ids[inverse]
-    species_out = np.empty((n, 2, nc))
-    reactions_out = np.empty((n, 3, nr))
-    element_res = np.empty((n, ne))
-    state = np.empty((n, 3))
-    ints = np.empty((n, 4), dtype=np.int64)
+    if scalar_feed:  # one feed for every state: one pattern of zero amounts, given once
+        pats = np.array([system._pattern(int((N0[0] > 0.0) @ system._bits))], dtype=np.int64)
+    else:
+        pats = np.zeros(n, dtype=np.int64)
+        for a in range(0, n, BLOCK):
+            b = min(n, a + BLOCK)
+            ok = valid[a:b] != 0
+            if ok.any():
+                keys = (N0[a:b][ok] > 0.0) @ system._bits
+                unique, inverse = np.unique(keys, return_inverse=True)
+                ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
+                pats[a:b][ok] = ids[inverse]
+    tail, width = D.row_layout(nc, nr, ne)
+    out = np.empty((n, width))  # one packed row per state (see hipeq.solvers._driver.row_layout)
+    ints = np.empty((n, 4), dtype=np.int64)  # status, iterations, outer iterations, root code
     liquid = np.empty(n, dtype=np.bool_)
-    valid_u8 = valid.astype(np.uint8)
     threads = numba.get_num_threads()
     for a in range(0, n, BLOCK):
         b = min(n, a + BLOCK)
         ln_k_user = np.zeros((0, nr))
         if system._ln_K is not None:
             ln_k_user = np.zeros((b - a, nr))
-            ok = valid[a:b]
+            ok = valid[a:b] != 0
             if ok.any():
                 ln_k_user[ok] = system._user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
         chunk = max(1, min(MAX_CHUNK, -(-(b - a) // (4 * threads))))
-        order = neighbour_order(Tf[a:b], PVf[a:b], pats[a:b])
-        D.solve_many(*system._static, *system._stacked, Tf[a:b], PVf[a:b], N0[a:b], pats[a:b], ln_k_user,
-                     valid_u8[a:b], opts_i, opts_f, chunk, order, species_out[a:b], reactions_out[a:b],
-                     element_res[a:b],                     state[a:b], ints[a:b], liquid[a:b])
-    for arr in (species_out, reactions_out, element_res, state, ints, liquid, Tf, PVf, N0):
+        block_pats = pats if scalar_feed else pats[a:b]
+        order = neighbour_order(Tf[a:b], PVf[a:b], block_pats)
+        D.solve_many(*system._static, *system._stacked, Tf[a:b], PVf[a:b], N0[a:b], block_pats, ln_k_user,
+                     valid[a:b], opts_i, opts_f, chunk, order, out[a:b], ints[a:b], liquid[a:b])
+    for arr in (out, ints, liquid, Tf, PVf, N0):
         arr.flags.writeable = False
-    reasons = _InvalidReasons(system, Tf, PVf, N0, fixed_volume, ~valid)
+    reasons = _InvalidReasons(system, Tf, PVf, N0, fixed_volume, valid)
     s = shape
-    return BatchResult(s, Tf.reshape(s), state[:, 0].reshape(s), state[:, 1].reshape(s), state[:, 2].reshape(s),
-                       species_out[:, 0].reshape(s + (nc,)), N0.reshape(s + (nc,)),
-                       species_out[:, 1].reshape(s + (nc,)), reactions_out[:, 0].reshape(s + (nr,)),
-                       reactions_out[:, 1].reshape(s + (nr,)), reactions_out[:, 2].reshape(s + (nr,)),
-                       element_res.reshape(s + (ne,)), ints[:, 1].reshape(s), ints[:, 2].reshape(s),
-                       ints[:, 0].reshape(s), method, scheme, liquid.reshape(s), fixed_volume, reasons, system._info)
+
+    def columns(first: int, count: int) -> np.ndarray:  # a view of the packed rows, in the caller's shape
+        return out[:, first:first + count].reshape(s + (count,))
+
+    def column(j: int) -> np.ndarray:
+        return out[:, j].reshape(s)
+
+    return BatchResult(s, Tf.reshape(s), column(tail), column(tail + 1), column(tail + 2), columns(0, nc),
+                       N0.reshape(s + (nc,)), columns(nc, nc), columns(2 * nc, nr), columns(2 * nc + nr, nr),
+                       columns(2 * nc + 2 * nr, nr), columns(2 * nc + 3 * nr, ne), ints[:, 1].reshape(s),
+                       ints[:, 2].reshape(s), ints[:, 0].reshape(s), method, scheme, liquid.reshape(s), fixed_volume,
+                       reasons, system._info)

@@ -340,33 +340,45 @@ def solve_one(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
     return status, iters, outer, root, liquid
 
 
+def row_layout(nc, nr, ne):
+    """Offsets in the packed per-state output row of ``solve_many``: amounts (nc), ln phi (nc), extents (nr),
+    ln K (nr), residuals (nr), element residuals (ne), then P, V, Z. Returns (offset of P, row length)."""
+    tail = 2 * nc + 3 * nr + ne
+    return tail, tail + 3
+
+
+row_layout_jit = njit(cache=True, inline="always")(row_layout)
+
+
 @kernel
-def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f,
-                 out_species, out_reactions, element_res, out_state, out_ints, liquid, work):
+def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, rows, ints, liquid, work):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers, each warm-started from the previous converged one of the same pattern (see ``solve_many``)."""
+    buffers, each warm-started from the previous converged one of the same pattern (see ``solve_many``); the
+    answers go to ``rows`` (one packed row per state, see ``row_layout``), ``ints`` (status, iterations, outer
+    iterations, root code) and ``liquid``."""
     nc = N0.shape[1]
+    nr = system[7].shape[0]  # nu
+    ne = system[9].shape[0]  # A: element rows
+    tail, _ = row_layout_jit(nc, nr, ne)
     empty = opts_f[0:0]
     no = nc < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
     last_T = -1.0
     warm = False
     last_pat = -1
     for k in range(T.shape[0]):
+        row = rows[k]
         if valid[k] == 0:
+            row[:] = 0.0
             for i in range(nc):
-                out_species[k, 0, i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
-                out_species[k, 1, i] = 0.0
-            out_reactions[k, :, :] = 0.0
-            element_res[k, :] = 0.0
+                row[i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
             fixed_volume = opts_i[OPT_FIXED_VOLUME] != 0
             ok = math.isfinite(PV[k])
-            out_state[k, 0] = PV[k] if (ok and not fixed_volume) else 0.0
-            out_state[k, 1] = PV[k] if (ok and fixed_volume) else 0.0
-            out_state[k, 2] = 0.0
-            out_ints[k, 0] = INVALID_INPUT
-            out_ints[k, 1] = 0
-            out_ints[k, 2] = 0
-            out_ints[k, 3] = -1
+            row[tail] = PV[k] if (ok and not fixed_volume) else 0.0
+            row[tail + 1] = PV[k] if (ok and fixed_volume) else 0.0
+            ints[k, 0] = INVALID_INPUT
+            ints[k, 1] = 0
+            ints[k, 2] = 0
+            ints[k, 3] = -1
             liquid[k] = False
             continue
         pat = pats[k]
@@ -375,10 +387,13 @@ def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f,
         new_T = T[k] != last_T
         it = 0
         ou = 0
+        species = row[0:2 * nc].reshape((2, nc))
+        reactions = row[2 * nc:2 * nc + 3 * nr].reshape((3, nr))
+        elements = row[2 * nc + 3 * nr:tail]
         while True:  # one call site of the inlined solve_state
             st, it1, ou1, P, V, z, root, liq = solve_state(system, T[k], PV[k], N0[k], pat, user, empty, opts_i,
-                                                           opts_f, new_T, use_warm, work, out_species[k],
-                                                           out_reactions[k], element_res[k])
+                                                           opts_f, new_T, use_warm, work, species, reactions,
+                                                           elements)
             it += it1
             ou += ou1
             if st == CONVERGED or not use_warm:
@@ -388,32 +403,32 @@ def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f,
         last_T = T[k]
         warm = st == CONVERGED
         last_pat = pat
-        out_state[k, 0] = P
-        out_state[k, 1] = V
-        out_state[k, 2] = z
-        out_ints[k, 0] = st
-        out_ints[k, 1] = it
-        out_ints[k, 2] = ou
-        out_ints[k, 3] = root
+        row[tail] = P
+        row[tail + 1] = V
+        row[tail + 2] = z
+        ints[k, 0] = st
+        ints[k, 1] = it
+        ints[k, 2] = ou
+        ints[k, 3] = root
         liquid[k] = liq
 
 
 @njit(cache=True, parallel=True)
 def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
                pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-               T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, chunk, order,
-               out_species, out_reactions, element_res, out_state, out_ints, liquid):
+               T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, chunk, order, out, out_ints, out_liquid):
     """Many states (T[k], PV[k], N0[k]) in parallel chunks of ``chunk`` consecutive entries of ``order`` (a
     permutation that puts similar states next to each other), warm-started along a chunk, a failed warm start
-    retried cold. States with valid[k] == 0 are skipped and marked INVALID_INPUT.
-    ``ln_k_user`` has shape (n, nr) or (0, nr). Outputs: out_species (n, 2, nc) amounts and ln phi;
-    out_reactions (n, 3, nr) extents, ln K, residuals; element_res (n, ne); out_state (n, 3) P, V, Z;
-    out_ints (n, 4) status, iterations, outer iterations, root; liquid (n,)."""
+    retried cold. States with valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per
+    state or a single one for all. ``ln_k_user`` has shape
+    (n, nr) or (0, nr). ``out`` (n, row length) receives one packed row per state (``row_layout``), ``out_ints``
+    (n, 4) status, iterations, outer iterations, root code, ``out_liquid`` (n,) the liquid-like flag: a state's
+    answers are three contiguous pieces of memory, each written once."""
     n = T.shape[0]
     nc = N0.shape[1]
     nr = nu.shape[0]
     n_chunks = (n + chunk - 1) // chunk
-    ne = element_res.shape[1]
+    width = out.shape[1]
     system = (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir,
               pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull)
     for c in prange(n_chunks):
@@ -422,23 +437,19 @@ def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
         work = make_work(nc, nr, max(A.shape[0], pg_Q.shape[1]))
         # the chunk's states gathered into solving order, and its answers scattered back at the end: the
         # solve itself then reads and writes memory in sequence (in the caller's order every state was a few
-        # cache misses, about a fifth of its time)
+        # cache misses)
         Tl = np.empty(m)
         PVl = np.empty(m)
         N0l = np.empty((m, nc))
         patl = np.empty(m, dtype=np.int64)
         validl = np.empty(m, dtype=np.uint8)
         userl = np.empty((m if ln_k_user.shape[0] > 0 else 0, nr))
-        spl = np.empty((m, 2, nc))
-        rel = np.empty((m, 3, nr))
-        ell = np.empty((m, ne))
-        stl = np.empty((m, 3))
-        itl = np.empty((m, 4), dtype=np.int64)
-        liql = np.empty(m, dtype=np.bool_)
+        rows = np.empty((m, width))
+        ints = np.empty((m, 4), dtype=np.int64)
+        liq = np.empty(m, dtype=np.bool_)
         _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, Tl, PVl, N0l, patl, userl, validl, opts_i, opts_f, spl, rel, ell, stl, itl, liql, work)
-        _scatter(order[first:first + m], spl, rel, ell, stl, itl, liql, out_species, out_reactions, element_res,
-                 out_state, out_ints, liquid)
+        _solve_chunk(system, Tl, PVl, N0l, patl, userl, validl, opts_i, opts_f, rows, ints, liq, work)
+        _scatter(order[first:first + m], rows, ints, liq, out, out_ints, out_liquid)
 
 
 @kernel
@@ -448,7 +459,7 @@ def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl
         k = order[l]
         Tl[l] = T[k]
         PVl[l] = PV[k]
-        patl[l] = pats[k]
+        patl[l] = pats[k] if pats.shape[0] > 1 else pats[0]
         validl[l] = valid[k]
         for i in range(N0.shape[1]):
             N0l[l, i] = N0[k, i]
@@ -457,33 +468,23 @@ def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl
 
 
 @kernel
-def _scatter(order, spl, rel, ell, stl, itl, liql, out_species, out_reactions, element_res, out_state, out_ints,
-             liquid):
+def _scatter(order, rows, ints, liq, out, out_ints, out_liquid):
     """Row l of the chunk's answers into row order[l] of the outputs."""
     for l in range(order.shape[0]):
         k = order[l]
-        for a in range(spl.shape[1]):
-            for i in range(spl.shape[2]):
-                out_species[k, a, i] = spl[l, a, i]
-        for a in range(rel.shape[1]):
-            for r in range(rel.shape[2]):
-                out_reactions[k, a, r] = rel[l, a, r]
-        for e in range(ell.shape[1]):
-            element_res[k, e] = ell[l, e]
-        for a in range(3):
-            out_state[k, a] = stl[l, a]
+        for a in range(rows.shape[1]):
+            out[k, a] = rows[l, a]
         for a in range(4):
-            out_ints[k, a] = itl[l, a]
-        liquid[k] = liql[l]
-
+            out_ints[k, a] = ints[l, a]
+        out_liquid[k] = liq[l]
 
 # ---------------------------------------------------------------------------------------------------------
 # batch preparation (one pass over the states each, no temporaries)
 # ---------------------------------------------------------------------------------------------------------
 @kernel
 def valid_states(T, PV, N0, T_min, T_max, P_max, fixed_volume, ok):
-    """ok[k] = T_min <= T[k] <= T_max, 0 < PV[k] finite (and <= P_max at fixed pressure), every feed amount
-    finite and >= 0 with a positive total."""
+    """ok[k] = 1 (uint8) where T_min <= T[k] <= T_max, 0 < PV[k] finite (and <= P_max at fixed pressure), every
+    feed amount finite and >= 0 with a positive total; else 0."""
     for k in range(T.shape[0]):
         t = T[k]
         pv = PV[k]
@@ -494,13 +495,14 @@ def valid_states(T, PV, N0, T_min, T_max, P_max, fixed_volume, ok):
             if not (math.isfinite(v) and v >= 0.0):
                 good = False
             total += v
-        ok[k] = good and total > 0.0
+        ok[k] = 1 if (good and total > 0.0) else 0
 
 
 @kernel
 def order_keys(T, PV, pats, bands, key):
     """Sort key of ``hipeq.solvers._batch.neighbour_order``: (pattern, band of T) in the integer part, +-ln P
-    scaled to [0, 1] (sign alternating between bands, a snake path) in the fraction."""
+    scaled to [0, 1] (sign alternating between bands, a snake path) in the fraction. ``pats`` has one entry per
+    state or a single one for all."""
     n = T.shape[0]
     t_lo = math.inf
     t_hi = -math.inf
@@ -522,4 +524,5 @@ def order_keys(T, PV, pats, bands, key):
         band = min(int(t * bands), bands - 1)
         if band % 2 == 1:
             p = -p
-        key[k] = (pats[k] * bands + band) * 4.0 + (p + 1.0)
+        pat = pats[k] if pats.shape[0] > 1 else pats[0]
+        key[k] = (pat * bands + band) * 4.0 + (p + 1.0)
