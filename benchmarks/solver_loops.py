@@ -78,25 +78,29 @@ def make_solve_state_loop():
     """A serial loop over ``hipeq.solvers._driver.solve_state`` (private; built on first use so that a changed
     signature only disables the figures that need it). mode 0: solve each state from a cold start; mode 1: the
     same, then solve it again warm-started at its own answer (zero Newton steps), so that the difference of the
-    two is the fixed cost of a state."""
+    two is the fixed cost of a state. The per-state loop is compiled without reference counting, as the driver's
+    own chunk loop."""
     from hipeq.solvers import _driver as D
     from hipeq.solvers._common import make_work
 
-    @njit(cache=False)
-    def loop(static, nr, ne, T, PV, N0, pats, opts_i, opts_f, out_species, out_reactions, element_res, mode):
-        n = T.shape[0]
-        nc = N0.shape[1]
-        work = make_work(nc, nr, ne)
-        empty = np.zeros(0)
+    @njit(cache=False, _nrt=False)
+    def states(static, T, PV, N0, pats, opts_i, opts_f, work, empty, species, reactions, elements, mode):
         iterations = 0
-        for k in range(n):
-            r = D.solve_state(static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, False, work,
-                              out_species[k], out_reactions[k], element_res[k])
+        for k in range(T.shape[0]):
+            pat = pats[k] if pats.shape[0] > 1 else pats[0]
+            r = D.solve_state(static, T[k], PV[k], N0[k], pat, empty, empty, opts_i, opts_f, True, False, work,
+                              species, reactions, elements)
             iterations += r[1]
             if mode == 1:
-                D.solve_state(static, T[k], PV[k], N0[k], pats[k], empty, empty, opts_i, opts_f, True, True, work,
-                              out_species[k], out_reactions[k], element_res[k])
+                D.solve_state(static, T[k], PV[k], N0[k], pat, empty, empty, opts_i, opts_f, True, True, work,
+                              species, reactions, elements)
         return iterations
+
+    @njit(cache=False)
+    def loop(static, nr, ne, n_elements, T, PV, N0, pats, opts_i, opts_f, mode):
+        nc = N0.shape[1]
+        return states(static, T, PV, N0, pats, opts_i, opts_f, make_work(nc, nr, ne), np.zeros(0),
+                      np.empty((2, nc)), np.empty((3, nr)), np.empty(n_elements), mode)
 
     return loop
 
@@ -118,8 +122,7 @@ def solve_state_arguments(many_args: tuple) -> dict | None:
         return None
     k_many = many.index("T")  # solve_state takes solve_many's leading (system) arrays as one tuple
     named = dict(zip(many, many_args))
-    need = ("T", "PV", "N0", "pats", "opts_i", "opts_f", "out_species", "out_reactions", "element_res", "nu", "A",
-            "pg_Q")
+    need = ("T", "PV", "N0", "pats", "opts_i", "opts_f", "nu", "A", "pg_Q")
     if any(name not in named for name in need):
         return None
     out = {name: named[name] for name in need}
