@@ -47,13 +47,6 @@ def _generator():
     return module
 
 
-@pytest.fixture(autouse=True)
-def _clean_registry():
-    reset_registry()
-    yield
-    reset_registry()
-
-
 def test_regenerated_document_equals_the_stored_file():
     """The generator run in memory (live chemicals and thermo look-ups) gives exactly the stored values."""
     document = _generator().build_document()

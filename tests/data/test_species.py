@@ -16,13 +16,6 @@ BUNDLED = ["H2", "N2", "NH3", "Ar", "He", "CH4", "CO", "CO2", "H2O", "CH3OH", "O
            "CH3OCH3", "C2H5OH"]
 
 
-@pytest.fixture(autouse=True)
-def _clean_registry():
-    reset_registry()
-    yield
-    reset_registry()
-
-
 def test_every_bundled_species_has_every_field_in_si_units():
     assert list(available_species()) == BUNDLED
     for name in BUNDLED:

@@ -213,10 +213,10 @@ def tparams_into(code, T, comp, consts, kmat, aij, bi, daij, dbi):
 # the cubic: roots
 # ---------------------------------------------------------------------------------------------------------
 @inline_kernel
-def _polish(z, c2, c1, c0):
-    """At most three Newton steps on Z^3 + c2 Z^2 + c1 Z + c0 = 0, stopping once a step is below 1e-14 Z (the
-    closed-form roots are good to about 1e-12, so the second step is usually the last)."""
-    for _ in range(3):
+def _newton_root(z, c2, c1, c0, steps):
+    """At most ``steps`` Newton steps on Z^3 + c2 Z^2 + c1 Z + c0 = 0 from z, stopping once a step is below
+    1e-14 Z. Returns (Z, whether it stopped that way)."""
+    for _ in range(steps):
         f = ((z + c2) * z + c1) * z + c0
         df = (3.0 * z + 2.0 * c2) * z + c1
         if df == 0.0:
@@ -224,7 +224,14 @@ def _polish(z, c2, c1, c0):
         step = f / df
         z -= step
         if abs(step) <= 1e-14 * abs(z):
-            break
+            return z, True
+    return z, False
+
+
+@inline_kernel
+def _polish(z, c2, c1, c0):
+    """Polish a closed-form root (good to about 1e-12): at most three Newton steps, usually two."""
+    z, _ = _newton_root(z, c2, c1, c0, 3)
     return z
 
 
@@ -263,23 +270,14 @@ def cubic_z_from(A, B, d1, d2, z_hint):
     disc = 0.25 * q * q + p * p * p / 27.0
     shift = -c2 / 3.0
     if z_hint > B:
-        z = z_hint
-        for _ in range(8):
-            f = ((z + c2) * z + c1) * z + c0
-            df = (3.0 * z + 2.0 * c2) * z + c1
-            if df == 0.0:
-                break
-            step = f / df
-            z -= step
-            if abs(step) <= 1e-14 * abs(z):
-                if z > B:
-                    # the other two roots from the deflated quadratic: complex, or both at or below B, leave z
-                    # as the only root of the model (else the closed form sorts the roots out)
-                    s2 = c2 + z
-                    dq = s2 * s2 - 4.0 * (c1 + z * s2)
-                    if dq < 0.0 or -0.5 * (s2 - math.sqrt(dq)) <= B:
-                        return z, ROOT_SINGLE
-                break
+        z, settled = _newton_root(z_hint, c2, c1, c0, 8)
+        if settled and z > B:
+            # the other two roots from the deflated quadratic: complex, or both at or below B, leave z as the
+            # only root of the model (else the closed form sorts the roots out)
+            s2 = c2 + z
+            dq = s2 * s2 - 4.0 * (c1 + z * s2)
+            if dq < 0.0 or -0.5 * (s2 - math.sqrt(dq)) <= B:
+                return z, ROOT_SINGLE
     if disc > 0.0 or p >= 0.0:
         sd = math.sqrt(max(disc, 0.0))
         t = np.cbrt(-0.5 * q + sd) + np.cbrt(-0.5 * q - sd)
