@@ -438,6 +438,22 @@ def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
 
 
 @inline_kernel
+def _column_sums(W, t, bi, si, Pi):
+    """(W^T b, W^T 1, W^T D, W^T P_i) for column t of W, with D_i = 2 s_i."""
+    wb = 0.0
+    ws = 0.0
+    wd = 0.0
+    wp = 0.0
+    for i in range(W.shape[0]):
+        w = W[i, t]
+        wb += w * bi[i]
+        ws += w
+        wd += w * 2.0 * si[i]
+        wp += w * Pi[i]
+    return wb, ws, wd, wp
+
+
+@inline_kernel
 def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
     """ln phi_i and the reduced matrix M_tu = sum_ij W_it (n d ln phi_i / d n_j) W_ju for the columns t, u < neff
     of W, from the same coefficients as ``_cubic_ln_phi_dn`` without forming the nc x nc matrix:
@@ -455,33 +471,16 @@ def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
     scratch[2, 0] = z
     F_nB, F_BD, F_BB, F_D, ipv = _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi)
     for t in range(neff):
-        wb_t = 0.0
-        ws_t = 0.0
-        wd_t = 0.0
-        wp_t = 0.0
-        for i in range(nc):
-            w = W[i, t]
-            wb_t += w * bi[i]
-            ws_t += w
-            wd_t += w * 2.0 * si[i]
-            wp_t += w * Pi[i]
+        wb_t, ws_t, wd_t, wp_t = _column_sums(W, t, bi, si, Pi)
         for u in range(t + 1):
-            wb_u = 0.0
-            ws_u = 0.0
-            wd_u = 0.0
-            wp_u = 0.0
+            wb_u, ws_u, wd_u, wp_u = _column_sums(W, u, bi, si, Pi)
             waw = 0.0
             for j in range(nc):
-                w = W[j, u]
-                if w != 0.0:
-                    wb_u += w * bi[j]
-                    ws_u += w
-                    wd_u += w * 2.0 * si[j]
-                    wp_u += w * Pi[j]
+                if W[j, u] != 0.0:
                     q = 0.0
                     for i in range(nc):
                         q += W[i, t] * aij[i, j]
-                    waw += q * w
+                    waw += q * W[j, u]
             v = (F_nB * (wb_t * ws_u + ws_t * wb_u) + F_BD * (wb_t * wd_u + wd_t * wb_u) + F_BB * wb_t * wb_u
                  + 2.0 * F_D * waw + ws_t * ws_u + wp_t * wp_u * ipv)
             M[t, u] = v
