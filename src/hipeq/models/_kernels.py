@@ -438,6 +438,19 @@ def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
 
 
 @inline_kernel
+def _bilinear(W, t, X, u):
+    """sum_ij W_it X_ij W_ju (columns t and u of W; rows of W that are zero skipped)."""
+    v = 0.0
+    for i in range(W.shape[0]):
+        if W[i, t] != 0.0:
+            q = 0.0
+            for j in range(W.shape[0]):
+                q += X[i, j] * W[j, u]
+            v += W[i, t] * q
+    return v
+
+
+@inline_kernel
 def _column_sums(W, t, bi, si, Pi):
     """(W^T b, W^T 1, W^T D, W^T P_i) for column t of W, with D_i = 2 s_i."""
     wb = 0.0
@@ -462,7 +475,6 @@ def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
                + ws_t ws_u + wp_t wp_u / (R T P_V)
 
     with wb = W^T b, ws = W^T 1, wD = W^T D, wp = W^T P_i (Michelsen & Mollerup 2007, ch. 2-3)."""
-    nc = y.shape[0]
     si = scratch[0]
     Pi = scratch[1]
     z, root, a, b, lq = _cubic_core(T, P, y, aij, bi, consts, out, si, scratch[2, 0])
@@ -474,13 +486,7 @@ def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
         wb_t, ws_t, wd_t, wp_t = _column_sums(W, t, bi, si, Pi)
         for u in range(t + 1):
             wb_u, ws_u, wd_u, wp_u = _column_sums(W, u, bi, si, Pi)
-            waw = 0.0
-            for j in range(nc):
-                if W[j, u] != 0.0:
-                    q = 0.0
-                    for i in range(nc):
-                        q += W[i, t] * aij[i, j]
-                    waw += q * W[j, u]
+            waw = _bilinear(W, t, aij, u)
             v = (F_nB * (wb_t * ws_u + ws_t * wb_u) + F_BD * (wb_t * wd_u + wd_t * wb_u) + F_BB * wb_t * wb_u
                  + 2.0 * F_D * waw + ws_t * ws_u + wp_t * wp_u * ipv)
             M[t, u] = v
@@ -663,7 +669,6 @@ def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scra
     columns of W (nc x >= neff): what a Newton step in reaction extents needs. The cubic forms M directly
     (``_cubic_ln_phi_reduced``, O(neff^2 nc^2) work and no nc x nc matrix); the other models form J in ``jac``
     and reduce it. ``scratch`` is a (3, nc) work array (row 2: the root's start, see ``ln_phi_hinted_tp``)."""
-    nc = y.shape[0]
     if code == MODEL_CUBIC:
         z, root = _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch)
         if root == ROOT_INVALID:
@@ -672,13 +677,7 @@ def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scra
     z, root = ln_phi_dn_tp(code, T, P, y, aij, bi, consts, out, jac, scratch)
     for t in range(neff):
         for u in range(t + 1):
-            v = 0.0
-            for i in range(nc):
-                if W[i, t] != 0.0:
-                    q = 0.0
-                    for j in range(nc):
-                        q += jac[i, j] * W[j, u]
-                    v += W[i, t] * q
+            v = _bilinear(W, t, jac, u)
             M[t, u] = v
             M[u, t] = v
     return z, root

@@ -89,8 +89,8 @@ class _InvalidReasons(Mapping[int, str]):
 def neighbour_order(T: np.ndarray, PV: np.ndarray, pats: np.ndarray) -> np.ndarray:
     """A permutation of the states that puts similar states next to each other, so that warm starts along a
     chunk start close to the answer (``pats``: one pattern per state, or one for all): grouped by zero-feed
-    pattern, then a boustrophedon ("snake") path over about
-    sqrt(n) bands of temperature, ordered by ln P (or ln V) within a band, alternating direction."""
+    pattern, then a boustrophedon ("snake") path over about sqrt(n) bands of temperature, ordered by ln P (or
+    ln V) within a band, alternating direction."""
     n = T.size
     if n < 64:
         return np.arange(n, dtype=np.int64)

@@ -2,13 +2,15 @@
 
 Private layer: arrays and scalars in, ``out`` arrays, status codes per state; nothing here raises.
 
-Per state: temperature-dependent model parameters (``tdep_into``) and g0_i(T) are computed only when T differs
+Per state: temperature-dependent model parameters (``tparams_into``) and g0_i(T) are computed only when T differs
 from the previous state of the chunk; the start is the previous converged state of the chunk when the pattern of
-zero feeds is the same (a warm start), else an interior point (a cold start); a failed warm-started solve is
-retried cold. At fixed volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's
-volume n_T Z R T / P to the given V (bracketed once the sign of the mismatch has changed; bisection otherwise).
-Work buffers are allocated once per chunk (packed into a few arrays, see hipeq.solvers._common); nothing is
-allocated inside the Newton loops.
+zero feeds is the same (a warm start, moved by one predicted Newton step for the change of T and P,
+``predict_start``), else an interior point (a cold start); a failed warm-started solve is retried cold. At fixed
+volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's volume n_T Z R T / P to the
+given V (bracketed once the sign of the mismatch has changed; bisection otherwise). Work buffers are allocated
+once per chunk (packed into a few arrays, see hipeq.solvers._common); the chunk's inputs are gathered into
+solving order and its answers scattered back as packed rows (``row_layout``); nothing is allocated inside the
+Newton loops, and every kernel here runs without reference counting (``hipeq._jit.kernel``).
 """
 from __future__ import annotations
 
