@@ -9,15 +9,24 @@ T[K] = t[degC] + 273.15 = (t[degF] + 459.67) x 5/9 = T[degR] x 5/9.
 
 Gauge pressures (``barg``, ``psig``, ...) are rejected: converting them needs the ambient pressure, which a unit
 string does not carry. Give absolute pressures (``bara``, ``psia`` or plain ``bar``, ``psi``).
+
+:func:`to_si` is the door of the Python API: it takes either SI numbers (returned unchanged) or unit strings
+(converted by :func:`parse_quantity`), one value or a list/array of them.
 """
 from __future__ import annotations
 
 import math
 import re
+import reprlib
+from collections.abc import Mapping
+from types import MappingProxyType
+from typing import Any
+
+import numpy as np
 
 from hipeq.errors import InputError
 
-__all__ = ["DIMENSIONS", "parse_quantity", "units_of"]
+__all__ = ["DIMENSIONS", "SI_UNITS", "parse_quantity", "to_si", "units_of"]
 
 _PSI = 0.45359237 * 9.80665 / 0.0254**2  # [Pa], exact by definition
 
@@ -48,6 +57,18 @@ _UNITS: dict[str, dict[str, tuple[float, float]]] = {
     },
 }
 DIMENSIONS: tuple[str, ...] = tuple(_UNITS)
+
+#: dimension -> its coherent SI unit (BIPM SI Brochure 2019, sections 2.3.1 and 2.3.4): the unit of every number
+#: that hipeq takes or returns for that dimension.
+SI_UNITS: Mapping[str, str] = MappingProxyType({
+    "pressure": "Pa", "temperature": "K", "volume": "m3", "amount": "mol", "energy": "J", "molar_energy": "J/mol",
+})
+
+_NOUNS = {"pressure": "a pressure", "temperature": "a temperature", "volume": "a volume", "amount": "an amount",
+          "energy": "an energy", "molar_energy": "a molar energy"}
+_NUMERIC_KINDS = "fiu"  # numpy dtype kinds taken as numbers: float, signed and unsigned integer (not bool 'b')
+_SHORT = reprlib.Repr()
+_SHORT.maxstring, _SHORT.maxother, _SHORT.maxlist, _SHORT.maxtuple = 40, 60, 6, 6
 
 _GAUGE = re.compile(r"^(k|M)?(Pa|bar|psi)\s*\(?g\)?$|^(barg|psig|kPag|MPag|atmg)$")
 _QUANTITY = re.compile(r"^\s*(?P<num>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*(?P<unit>.*?)\s*$")
@@ -113,3 +134,179 @@ def parse_quantity(text: str, dimension: str, field: str | None = None) -> float
 def _example(dimension: str) -> str:
     return {"pressure": "250 bar", "temperature": "450 degC", "volume": "2.5 m3", "amount": "10 kmol",
             "energy": "1.2 MJ", "molar_energy": "-45.9 kJ/mol"}[dimension]
+
+
+def to_si(value: Any, dimension: str, field: str) -> float | np.ndarray:
+    """The SI value of ``value``: an SI number (returned as is) or a string with a unit (converted).
+
+    Accepted, with the result:
+
+    - a Python ``int`` or ``float``, a numpy integer or floating scalar, or a 0-d numeric array: a Python
+      ``float``, the same number (taken to be in the SI unit of ``dimension``, :data:`SI_UNITS`);
+    - a string with a number and a unit, e.g. ``"450 degC"``, ``"300 bar"``, ``"2.5 L"``, ``"3 kmol"``: a
+      Python ``float``, SI value = number x factor + offset (:func:`parse_quantity`; exact factors from the BIPM
+      SI Brochure, 9th ed. 2019, and NIST SP 811, 2008, appendix B);
+    - a list or tuple (nested for more dimensions) or an ndarray of numbers: a float64 ndarray of the same
+      shape (an ndarray that is already float64 is returned itself, not copied);
+    - a list, tuple or ndarray of unit strings: a float64 ndarray of the same shape, every element converted.
+
+    Only the type, shape and unit are checked: a number is not range-checked and may be NaN or infinite (the
+    solver judges every state). A unit string is checked as :func:`parse_quantity` checks it (no temperature at
+    or below absolute zero, no negative pressure, volume or amount, a finite number).
+
+    Args:
+        value: the quantity, in the SI unit of ``dimension`` when a number: temperature [K], pressure [Pa],
+            volume [m3], amount [mol], energy [J], molar_energy [J/mol].
+        dimension: one of :data:`DIMENSIONS`.
+        field: the argument's name for error messages, e.g. ``"T"``; an element of a list is named ``"T[2]"``.
+
+    Returns:
+        float [SI unit of ``dimension``] for one value, float64 ndarray for a list or array.
+
+    Raises:
+        InputError: naming ``field`` (or ``field[i]``) for a boolean (Python or numpy, or a boolean array),
+            ``None``, a complex number, an integer too large for a float, any other object, an empty or ragged
+            list or array, a list mixing numbers and strings, or a bad unit string; naming ``"dimension"`` for an
+            unknown dimension.
+    """
+    if type(value) is float and dimension in _UNITS:  # the common case first: an SI float is returned as is
+        return value
+    return _to_si(value, dimension, field)
+
+
+def _to_si(value: Any, dimension: str, field: str) -> float | np.ndarray:
+    """:func:`to_si` for everything but a plain float."""
+    if dimension not in _UNITS:
+        raise InputError("dimension", f"must be one of {', '.join(DIMENSIONS)}, got {dimension!r}")
+    if type(value) is int or type(value) is np.float64:  # the next most common: an int, a float taken from an array
+        return _scalar_to_si(value, dimension, field)
+    if isinstance(value, np.ndarray):
+        return _array_to_si(value, dimension, field)
+    if isinstance(value, (list, tuple)):
+        if len(value) == 0:
+            raise InputError(field, "is empty; give at least one value")
+        try:
+            objects = np.asarray(value, dtype=object)
+        except ValueError:  # numpy refuses some ragged nestings outright
+            raise InputError(field, f"is ragged (its rows differ in length): {_SHORT.repr(value)}; give a "
+                                    "rectangular list or array") from None
+        return _objects_to_si(objects, dimension, field)
+    return _scalar_to_si(value, dimension, field)
+
+
+def _scalar_to_si(value: Any, dimension: str, field: str) -> float:
+    """One value: number -> float unchanged, string -> parse_quantity; anything else raises InputError."""
+    if isinstance(value, str):  # also numpy.str_
+        return parse_quantity(str(value), dimension, field)
+    if isinstance(value, (float, int)) and not isinstance(value, bool):  # also numpy.float64, IntEnum
+        try:
+            return float(value)
+        except OverflowError:
+            raise InputError(field, f"the integer {_SHORT.repr(value)} is too large for a floating-point number "
+                                    f"(at most about 1.8e308 {SI_UNITS[dimension]})") from None
+    if isinstance(value, np.generic) and value.dtype.kind in _NUMERIC_KINDS:  # numpy.float32, numpy.int64, ...
+        return float(value)
+    if isinstance(value, np.ndarray) and value.ndim == 0 and not isinstance(value, np.ma.MaskedArray):
+        return _scalar_to_si(value[()], dimension, field)
+    raise _wrong_type(value, dimension, field)
+
+
+def _array_to_si(value: np.ndarray, dimension: str, field: str) -> float | np.ndarray:
+    if isinstance(value, np.ma.MaskedArray):
+        raise InputError(field, "is a masked array; fill or drop the masked values first (e.g. .filled(np.nan) "
+                                "or .compressed())")
+    if value.ndim == 0:
+        return _scalar_to_si(value, dimension, field)
+    if value.size == 0:
+        raise InputError(field, "is empty; give at least one value")
+    kind = value.dtype.kind
+    if kind in _NUMERIC_KINDS:
+        return np.asarray(value, dtype=np.float64)
+    if kind == "U":
+        return _strings_to_si(value, dimension, field)
+    if kind == "O":
+        return _objects_to_si(value, dimension, field)
+    described = {"b": "a boolean array", "c": "a complex array", "S": "an array of bytes"}.get(
+        kind, f"an array of dtype {value.dtype}")
+    raise InputError(field, f"must be {_NOUNS[dimension]} in {SI_UNITS[dimension]} (numbers) or strings with a "
+                            f"unit such as '{_example(dimension)}', got {described} of shape {value.shape}")
+
+
+def _objects_to_si(objects: np.ndarray, dimension: str, field: str) -> np.ndarray:
+    """An object array from a list or an ndarray: all numbers, or all strings; elements checked by type."""
+    if objects.size == 0:
+        raise InputError(field, "is empty; give at least one value")
+    types = {type(x) for x in objects.flat}
+    if any(issubclass(t, np.ndarray) for t in types):  # 0-d arrays inside a list: take their values
+        objects = objects.copy()
+        for index, x in np.ndenumerate(objects):
+            if isinstance(x, np.ndarray) and x.ndim == 0:
+                objects[index] = x[()]
+        types = {type(x) for x in objects.flat}
+    bad = {t for t in types if not (issubclass(t, str) or _is_number_type(t))}
+    if bad:
+        index, x = next((index, x) for index, x in np.ndenumerate(objects) if type(x) in bad)
+        if isinstance(x, (list, tuple, np.ndarray)):
+            raise InputError(field, f"is ragged or nested too deep ({_element(field, index)} is "
+                                    f"{_SHORT.repr(x)}); give a rectangular list or array of numbers or strings")
+        raise _wrong_type(x, dimension, _element(field, index))
+    strings = any(issubclass(t, str) for t in types)
+    if strings and len(types) > 1 and not all(issubclass(t, str) for t in types):
+        first_number = next(index for index, x in np.ndenumerate(objects) if not isinstance(x, str))
+        first_string = next(index for index, x in np.ndenumerate(objects) if isinstance(x, str))
+        a, b = sorted((first_number, first_string))
+        raise InputError(field, f"mixes numbers and strings ({_element(field, a)} = {_SHORT.repr(objects[a])}, "
+                                f"{_element(field, b)} = {_SHORT.repr(objects[b])}); give every value as a "
+                                f"number in {SI_UNITS[dimension]} or every value as a string with a unit")
+    if strings:
+        return _strings_to_si(objects, dimension, field)
+    try:
+        return objects.astype(np.float64)
+    except OverflowError:
+        big = next(index for index, x in np.ndenumerate(objects) if not _fits_float(x))
+        raise InputError(_element(field, big), f"the integer {_SHORT.repr(objects[big])} is too large for a "
+                                               f"floating-point number") from None
+
+
+def _strings_to_si(strings: np.ndarray, dimension: str, field: str) -> np.ndarray:
+    out = np.empty(strings.shape, dtype=np.float64)
+    for index, text in np.ndenumerate(strings):
+        out[index] = parse_quantity(str(text), dimension, _element(field, index))
+    return out
+
+
+def _fits_float(x: object) -> bool:
+    try:
+        float(x)  # type: ignore[arg-type]
+    except OverflowError:
+        return False
+    return True
+
+
+def _is_number_type(t: type) -> bool:
+    """A real number type that is not boolean: int, float, their subclasses, numpy integer and floating types."""
+    if issubclass(t, (float, int)):
+        return not issubclass(t, bool)
+    return issubclass(t, np.generic) and np.dtype(t).kind in _NUMERIC_KINDS
+
+
+def _element(field: str, index: tuple[int, ...]) -> str:
+    """``T[2]`` for element (2,) of T, ``T[1, 0]`` for element (1, 0)."""
+    return f"{field}[{', '.join(str(i) for i in index)}]"
+
+
+def _wrong_type(value: object, dimension: str, field: str) -> InputError:
+    """The error for a value that is neither a number nor a string; says the SI unit and gives an example."""
+    if value is None:
+        got = "None"
+    elif isinstance(value, (bool, np.bool_)):
+        got = f"{bool(value)!r} (a boolean)"
+    elif isinstance(value, (bytes, bytearray)):
+        got = f"{_SHORT.repr(value)} (bytes, not text: decode them first)"
+    elif isinstance(value, (complex, np.complexfloating)):
+        got = f"{_SHORT.repr(value)} (a complex number)"
+    else:
+        name = type(value).__name__
+        got = f"{_SHORT.repr(value)} ({'an' if name[:1].lower() in 'aeiou' else 'a'} {name})"
+    return InputError(field, f"must be {_NOUNS[dimension]} in {SI_UNITS[dimension]} (a number) or a string with a "
+                             f"unit such as '{_example(dimension)}', got {got}")

@@ -66,6 +66,87 @@ def test_malformed_text_raises_input_error(text):
     assert err.value.field == "reaction"
 
 
+_RULE = ("coefficients are finite positive numbers (e.g. 2, 0.5, 3/2) written without a sign, reactants on the "
+         "left side and products on the right side")
+
+
+def _reaction_error(text: str) -> str:
+    with pytest.raises(InputError) as err:
+        Reaction.parse(text)
+    assert err.value.field == "reaction"
+    assert not isinstance(err.value, UnknownSpeciesError)
+    return str(err.value)
+
+
+@pytest.mark.parametrize("text, term, fix", [
+    ("-1 N2 + 3 H2 = 2 NH3", "'-1 N2'", "write '1 N2' on the left side if N2 is consumed, or on the right side if it "
+                                        "is formed"),
+    ("N2 + 3 H2 = -2 NH3", "'-2 NH3'", "write '2 NH3' on the left side if NH3 is consumed"),
+    ("-N2 + 3 H2 = 2 NH3", "'-N2'", "write 'N2' on the left side"),
+    ("\u22121 N2 + 3 H2 = 2 NH3", "'\u22121 N2'", "write '1 N2'"),  # the Unicode minus sign
+])
+def test_signed_coefficient_names_the_term_and_the_rule(text, term, fix):
+    message = _reaction_error(text)
+    assert f"term {term} of {text!r} has a sign, but {_RULE}" in message and fix in message
+    assert "unknown species" not in message
+
+
+def test_overflowing_coefficient_is_named_as_written():
+    message = _reaction_error("1e400 N2 + 3 H2 = 2 NH3")
+    assert "coefficient '1e400' of 'N2'" in message and "too large (it overflows to infinity)" in message
+    assert _RULE in message and "-inf" not in message and "got" not in message
+    assert "coefficient '1e400' of 'N2'" in _reaction_error("1e400N2 + 3 H2 = 2 NH3")
+    message = _reaction_error("1e308 N2 + 1e308 N2 = 2 NH3")  # each finite, the sum is not
+    assert "the coefficients of 'N2'" in message and "add up to more than" in message
+
+
+@pytest.mark.parametrize("text, coefficient, reason", [
+    ("0 N2 + 3 H2 = 2 NH3", "'0' of 'N2'", "is zero"),
+    ("N2 + 3 H2 = 0.0 NH3", "'0.0' of 'NH3'", "is zero"),
+    ("0/2 N2 + 3 H2 = 2 NH3", "'0/2' of 'N2'", "is zero"),
+    ("1e-400 N2 + 3 H2 = 2 NH3", "'1e-400' of 'N2'", "is too small to represent (it underflows to zero)"),
+])
+def test_zero_coefficient_names_the_coefficient_and_the_rule(text, coefficient, reason):
+    message = _reaction_error(text)
+    assert f"coefficient {coefficient} in {text!r} {reason}; {_RULE}" in message
+
+
+@pytest.mark.parametrize("text", ["2 2 N2 + 3 H2 = 2 NH3", "2 2N2 + 3 H2 = 2 NH3"])
+def test_two_coefficients_in_one_term(text):
+    term = text.split(" +")[0]
+    message = _reaction_error(text)
+    assert f"term {term!r} of {text!r} has more than one coefficient ('2', then '2')" in message
+    assert "write one number before the species" in message
+
+
+@pytest.mark.parametrize("text, position, cause", [
+    ("N2 + + H2 = 2 NH3", "the second term of the left side", "two '+' in a row"),
+    ("N2 + 3 H2 = 2 NH3 +", "the second term of the right side", "a '+' at the end of a side"),
+    ("+ N2 + 3 H2 = 2 NH3", "the first term of the left side", "a '+' at the start of a side"),
+])
+def test_empty_term_names_its_position(text, position, cause):
+    message = _reaction_error(text)
+    assert f"{position} of {text!r} is empty ({cause}" in message
+
+
+@pytest.mark.parametrize("text, term", [("3 = NH3", "'3'"), ("N2 + 3 H2 = 2", "'2'"), ("N2 + 3/2 = NH3", "'3/2'")])
+def test_coefficient_without_species_names_the_term(text, term):
+    message = _reaction_error(text)
+    assert f"term {term} of {text!r} is a coefficient with no species" in message
+
+
+def test_names_starting_with_digits_still_parse():
+    from hipeq.data.species import register_species  # the registry is reset after each test (conftest)
+
+    register_species("NH3", aliases=["1-azane"])  # an invented alias that starts with a digit
+    assert Reaction.parse("1/2 N2 + 3/2 H2 = 1-azane") == Reaction.parse("1/2 N2 + 3/2 H2 = NH3")
+    assert Reaction.parse("N2 + 3 H2 = 2 1-azane") == Reaction.parse("N2 + 3 H2 = 2 NH3")
+    assert Reaction.parse("7727-37-9 + 3 H2 = 2 NH3") == Reaction.parse("N2 + 3 H2 = 2 NH3")  # N2 by CAS number
+    assert "coefficient '0' of '1-azane'" in _reaction_error("0 1-azane + N2 + 3 H2 = 3 NH3")
+    with pytest.raises(UnknownSpeciesError, match="'1-xyz'"):
+        Reaction.parse("N2 + 3 H2 = 2 1-xyz")
+
+
 def test_unknown_species_in_reaction():
     with pytest.raises(UnknownSpeciesError, match="did you mean 'NH3'"):
         Reaction.parse("N2 + 3 H2 = 2 NH4")

@@ -24,7 +24,13 @@ __all__ = ["Reaction", "ReactionIndependence", "element_matrix", "stoichiometric
 
 _BALANCE_TOL = 1e-9
 _SEPARATORS = ("<=>", "->", "=")
-_TERM = re.compile(r"^\s*(?P<coef>(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?(?:/\d+)?)?\s*(?P<name>.*?)\s*$")
+_NUMBER = r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?(?:/\d+)?"  # 2, 0.5, .5, 1e-3, 3/2
+_TERM = re.compile(rf"^\s*(?P<coef>{_NUMBER})?\s*(?P<name>.*?)\s*$")
+_SECOND = re.compile(rf"^(?P<coef>{_NUMBER})(?P<space>\s*)(?P<rest>.*)$")  # a second number, as in "2 2 N2"
+_SIGNS = ("-", "\u2212")  # hyphen-minus and the minus sign
+_COEFFICIENT_RULE = ("coefficients are finite positive numbers (e.g. 2, 0.5, 3/2) written without a sign, "
+                     "reactants on the left side and products on the right side")
+_ORDINALS = ("first", "second", "third", "fourth", "fifth", "sixth", "seventh", "eighth", "ninth", "tenth")
 
 
 def _fmt(value: float) -> str:
@@ -85,7 +91,12 @@ class Reaction:
     @classmethod
     def parse(cls, text: str) -> Reaction:
         """Parse ``"N2 + 3 H2 = 2 NH3"``; ``<=>`` and ``->`` are accepted for ``=``; coefficients may be
-        integers, decimals (``0.5``) or fractions (``3/2``); species by identifier, name, formula or CAS."""
+        integers, decimals (``0.5``) or fractions (``3/2``); species by identifier, name, formula or CAS.
+
+        Coefficients are finite positive numbers written without a sign (1 when left out): reactants on the left
+        side, products on the right. InputError("reaction") names the offending term for a sign, a zero or
+        non-finite coefficient, two coefficients in one term, a coefficient without a species or an empty term.
+        """
         if not isinstance(text, str):
             raise InputError("reaction", f"must be text such as 'N2 + 3 H2 = 2 NH3', got {text!r}")
         sep = next((s for s in _SEPARATORS if s in text), None)
@@ -93,12 +104,24 @@ class Reaction:
             raise InputError("reaction", f"{text!r} needs exactly one of '=', '<=>', '->' between the sides")
         left, right = text.split(sep)
         coefficients: dict[str, float] = {}
-        for sign, side in ((-1.0, left), (1.0, right)):
+        for sign, side, where in ((-1.0, left, "left"), (1.0, right, "right")):
             if not side.strip():
-                raise InputError("reaction", f"{text!r} has an empty side")
-            for term in side.split("+"):
+                raise InputError("reaction", f"{text!r} has an empty {where} side")
+            terms = side.split("+")
+            for k, term in enumerate(terms):
+                if not term.strip():
+                    position = _ORDINALS[k] if k < len(_ORDINALS) else f"#{k + 1}"
+                    cause = ("a '+' at the start of a side; coefficients take no sign" if k == 0 else
+                             "a '+' at the end of a side" if k == len(terms) - 1 else "two '+' in a row")
+                    raise InputError("reaction", f"the {position} term of the {where} side of {text!r} is empty "
+                                                 f"({cause}); write one species, with an optional coefficient, "
+                                                 "between each pair of '+'")
                 coef, ident = _parse_term(term, text)
-                coefficients[ident] = coefficients.get(ident, 0.0) + sign * coef
+                total = coefficients.get(ident, 0.0) + sign * coef
+                if not math.isfinite(total):
+                    raise InputError("reaction", f"the coefficients of {ident!r} in {text!r} add up to more than "
+                                                 "the largest floating-point number; " + _COEFFICIENT_RULE)
+                coefficients[ident] = total
         return cls(coefficients)
 
     @property
@@ -152,25 +175,63 @@ class Reaction:
 
 
 def _parse_term(term: str, text: str) -> tuple[float, str]:
+    """Coefficient (> 0, finite) and species identifier of one term such as ``"3/2 H2"`` of reaction ``text``.
+
+    A name that starts with digits (``"1-butene"``) is read as a name when the digits are not followed by white
+    space and the rest alone is no known species. Raises InputError("reaction") naming the term for a signed,
+    zero, non-finite or doubled coefficient, a coefficient without a species or a zero denominator;
+    UnknownSpeciesError for an unknown name.
+    """
+    stripped = term.strip()
+    if stripped.startswith(_SIGNS):
+        unsigned = stripped[1:].strip()
+        name = _TERM.match(unsigned)["name"] or unsigned  # type: ignore[index]
+        fix = (f": write {unsigned!r} on the left side if {name} is consumed, or on the right side if it is formed"
+               if name else "")
+        raise InputError("reaction", f"term {stripped!r} of {text!r} has a sign, but {_COEFFICIENT_RULE}{fix}")
     match = _TERM.match(term)
-    if match is None or not match["name"]:
-        raise InputError("reaction", f"cannot read term {term.strip()!r} in {text!r}")
+    if match is None:  # cannot happen with this pattern (every part is optional); kept as a guard
+        raise InputError("reaction", f"cannot read term {stripped!r} in {text!r}")
     coef_text, name = match["coef"], match["name"]
+    if not name:
+        raise InputError("reaction", f"term {stripped!r} of {text!r} is a coefficient with no species; write a "
+                                     f"species after the number, e.g. '{stripped} NH3'")
     if coef_text is None:
         return 1.0, species(name).name
     num, _, den = coef_text.partition("/")
     if den and float(den) == 0.0:
-        raise InputError("reaction", f"zero denominator in {term.strip()!r} of {text!r}")
-    coef = float(num) / (float(den) if den else 1.0)
+        raise InputError("reaction", f"zero denominator in {stripped!r} of {text!r}; {_COEFFICIENT_RULE}")
     try:
         ident = species(name).name
     except UnknownSpeciesError:
-        if term.strip()[len(coef_text):len(coef_text) + 1].isspace():
+        spaced = stripped[len(coef_text):len(coef_text) + 1].isspace()
+        second = _SECOND.match(name) if spaced else None
+        if second is not None and (second["space"] or not second["rest"] or _known(second["rest"])):
+            raise InputError("reaction", f"term {stripped!r} of {text!r} has more than one coefficient "
+                                         f"({coef_text!r}, then {second['coef']!r}); write one number before the "
+                                         "species") from None
+        if spaced:
             raise
-        return 1.0, species(term.strip()).name  # a name starting with digits, e.g. "1-butene"
+        return 1.0, species(stripped).name  # a name starting with digits, e.g. "1-butene"
+    coef = float(num) / (float(den) if den else 1.0)
+    if not math.isfinite(coef):
+        raise InputError("reaction", f"coefficient {coef_text!r} of {name!r} in {text!r} is too large (it "
+                                     f"overflows to infinity); {_COEFFICIENT_RULE}")
     if coef <= 0.0:
-        raise InputError("reaction", f"coefficient of {name!r} must be > 0 in {text!r} (write it on the other side)")
+        written_zero = not any(c in "123456789" for c in re.split("[eE]", num)[0])
+        reason = "is zero" if written_zero else "is too small to represent (it underflows to zero)"
+        raise InputError("reaction", f"coefficient {coef_text!r} of {name!r} in {text!r} {reason}; "
+                                     f"{_COEFFICIENT_RULE}; leave out a species that takes no part")
     return coef, ident
+
+
+def _known(name: str) -> bool:
+    """Whether ``name`` is a registered species (identifier, name, formula or CAS)."""
+    try:
+        species(name)
+    except UnknownSpeciesError:
+        return False
+    return True
 
 
 def as_reaction(reaction: Reaction | str) -> Reaction:
