@@ -3,10 +3,8 @@ PY      ?= python3
 VENV    := .venv
 BIN     := $(VENV)/bin
 STAMP   := $(VENV)/.installed
-# numba does not notice when a kernel in another module changes: key the cache by the kernel sources (and by
-# data/heat_capacity.py, whose TRC closed forms data/_kernels.py compiles)
-KERNEL_HASH := $(shell cat src/hipeq/_*.py src/hipeq/*/_*.py src/hipeq/data/heat_capacity.py 2>/dev/null | sha1sum | cut -c1-12)
-export NUMBA_CACHE_DIR ?= $(CURDIR)/.numba_cache/$(KERNEL_HASH)
+# numba's cache: hipeq chooses the folder itself and keys it by the kernel sources (src/hipeq/_cache.py), the same
+# folder for make targets and plain runs; nothing to set here (see DEVELOPERS.md, "The compiled-code cache")
 
 .PHONY: test demo bench soak clean
 

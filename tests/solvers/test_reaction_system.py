@@ -115,10 +115,11 @@ def test_result_serialises(result) -> None:
 
 
 def test_status_tables_are_consistent() -> None:
-    assert len(STATUS_NAMES) == len(STATUS_MESSAGES) == 7
     from hipeq.solvers import _common as C
+    from hipeq.solvers.result import Status
+    assert len(STATUS_NAMES) == len(STATUS_MESSAGES) == len(Status) == 9
     for code, name in enumerate(STATUS_NAMES):
-        assert getattr(C, name) == code
+        assert getattr(C, name) == code == Status[name]
 
 
 # --------------------------------------------------------------------------------------------------------

@@ -50,6 +50,7 @@ ROOT_SINGLE = 0  # one real root above the co-volume
 ROOT_GAS = 1  # three roots; the larger-volume one had the lower Gibbs energy
 ROOT_LIQUID = 2  # three roots; the smaller-volume one had the lower Gibbs energy
 ROOT_INVALID = -1  # the model has no physical state here (e.g. truncated virial with Z <= 0)
+LIQUID_LIKE_REDUCED_VOLUME = 1.75  # v/b below this is liquid-like (our rule, DEVELOPERS.md)
 
 # Gunn, Chueh & Prausnitz (1966), AIChE J. 12, 937: effective critical constants of quantum gases
 #   Tc = Tc0 / (1 + c1 / (M T)),  Pc = Pc0 / (1 + c2 / (M T)),  M in g/mol, c1 = 21.8 K, c2 = 44.2 K

@@ -60,7 +60,7 @@ from hipeq.models.kij import KijAssignment, KijInput, assign_kij
 __all__ = ["CubicForm", "CUBICS", "MODELS", "CompiledModel", "FugacityResult", "build_model",
            "fugacity_coefficients", "alpha_slope", "LIQUID_LIKE_REDUCED_VOLUME"]
 
-LIQUID_LIKE_REDUCED_VOLUME = 1.75  # v/b below this is liquid-like (our rule, DEVELOPERS.md)
+LIQUID_LIKE_REDUCED_VOLUME = K.LIQUID_LIKE_REDUCED_VOLUME  # v/b below this is liquid-like (DEVELOPERS.md)
 
 
 class CubicForm(NamedTuple):

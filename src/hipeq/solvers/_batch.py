@@ -11,25 +11,26 @@ import math
 from collections.abc import Mapping
 from typing import TYPE_CHECKING, Any
 
-import numba
 import numpy as np
 
 from hipeq.errors import InputError
+from hipeq.models.inputs import P_MAX
+from hipeq.solvers import _arrays as A
 from hipeq.solvers import _driver as D
-from hipeq.solvers.result import BatchResult
+from hipeq.solvers.result import BatchResult, batch_result
+from hipeq.units import to_si
 
 if TYPE_CHECKING:
     from hipeq.solvers.system import ReactionSystem
 
 BLOCK = 1 << 16
 MAX_CHUNK = 128
+CHUNKS_PER_BLOCK = 16  # chunks of a block (independent of the thread count: answers do not depend on it)
+MAX_STATES = 50_000_000  # one call; larger maps are split by the caller (analysis layer)
 
 
 def _numbers(value: Any, field: str) -> np.ndarray:
-    try:
-        return np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(field, f"must be a number or an array of numbers, got {value!r}") from None
+    return np.asarray(to_si(value, "amount", field), dtype=float)
 
 
 def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.ndarray]], list[tuple[int, ...]]]:
@@ -39,8 +40,8 @@ def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.
             raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
         cols: dict[int, np.ndarray] = {}
         for name, amount in feed.items():
-            j = system._feed_index(name)
-            arr = _numbers(amount, "feed")
+            j = system.species_index(name)
+            arr = _numbers(amount, f"feed[{name!r}]")
             cols[j] = cols[j] + arr if j in cols else arr
         items = sorted(cols.items())
         return items, [a.shape for _, a in items]
@@ -54,24 +55,27 @@ def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.
 class _InvalidReasons(Mapping[int, str]):
     """Reason text for an invalid state, computed on demand from the inputs kept in the result."""
 
-    def __init__(self, system: ReactionSystem, T: np.ndarray, PV: np.ndarray, N0: np.ndarray, fixed_volume: bool,
-                 valid: np.ndarray) -> None:
-        self._args = (system, T, PV, N0, fixed_volume)
+    def __init__(self, T_min: float, T_max: float, T: np.ndarray, PV: np.ndarray, N0: np.ndarray,
+                 fixed_volume: bool, valid: np.ndarray, bad_ln_k: np.ndarray) -> None:
+        self._args = (T_min, T_max, T, PV, N0, fixed_volume)
         self._valid = valid  # uint8, 0 where the state was not solved
+        self._bad_ln_k = bad_ln_k  # bool, True where the user's ln K was not finite
 
     def __getitem__(self, k: int) -> str:
-        system, T, PV, N0, fixed_volume = self._args
+        T_min, T_max, T, PV, N0, fixed_volume = self._args
         if self._valid[k]:
             raise KeyError(k)
         reasons = []
         t = float(T[k])
-        if not (system.T_min <= t <= system.T_max):
-            reasons.append(f"T = {t!r} K is outside {system.T_min:g}-{system.T_max:g} K")
+        if not (T_min <= t <= T_max):
+            reasons.append(f"T = {t!r} K is outside {T_min:g}-{T_max:g} K")
+        if self._bad_ln_k.size and self._bad_ln_k[k]:
+            reasons.append(f"the ln_K callable returned a value that is not finite at T = {t!r} K")
         v = float(PV[k])
         if fixed_volume and not (v > 0.0 and math.isfinite(v)):
             reasons.append(f"V = {v!r} m3 must be finite and > 0")
-        if not fixed_volume and not (0.0 < v <= D.P_MAX):
-            reasons.append(f"P = {v!r} Pa must be finite, > 0 and <= {D.P_MAX:g}")
+        if not fixed_volume and not (0.0 < v <= P_MAX):
+            reasons.append(f"P = {v!r} Pa must be finite, > 0 and <= {P_MAX:g}")
         row = N0[k]
         if not np.all(np.isfinite(row)) or np.any(row < 0.0):
             reasons.append("feed amounts must be finite and >= 0 mol")
@@ -101,18 +105,26 @@ def neighbour_order(T: np.ndarray, PV: np.ndarray, pats: np.ndarray) -> np.ndarr
 
 def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_volume: bool, method: str,
                 scheme: str, tol: float, max_iterations: int) -> BatchResult:
-    """Body of :meth:`ReactionSystem.equilibrium_batch` (see there)."""
+    """Body of :meth:`ReactionSystem.equilibrium_batch` (see there); T [K] and value (P [Pa] or V [m3]) are
+    already SI numbers or arrays."""
     field = "V" if fixed_volume else "P"
-    T_arr = _numbers(T, "T")
-    PV_arr = _numbers(value, field)
+    T_arr = np.asarray(T, dtype=float)
+    PV_arr = np.asarray(value, dtype=float)
     cols, feed_shapes = _feed_arrays(system, feed)
     try:
         shape = np.broadcast_shapes(T_arr.shape, PV_arr.shape, *feed_shapes)
     except ValueError:
         raise InputError("T", f"T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} do not "
                               "broadcast to one shape of states") from None
-    opts_i, opts_f = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
     n = int(np.prod(shape)) if shape else 1
+    if n == 0:
+        raise InputError("T", f"no states: T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} "
+                              "broadcast to an empty shape; give at least one value")
+    if n > MAX_STATES:
+        raise InputError("T", f"{n} states in one call is more than {MAX_STATES}; split the work into calls of at "
+                              "most that many states")
+    options = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
+    compiled = system.compiled
     nc, nr, ne = len(system.species_names), len(system.reactions), len(system.elements)
     # fresh writeable C-contiguous copies: one compiled signature whatever the caller passed
     Tf = np.array(np.broadcast_to(T_arr, shape).reshape(n), dtype=np.float64, order="C")
@@ -124,24 +136,33 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
     # validity (one compiled pass) and feed patterns (block by block, so that temporaries stay bounded by BLOCK):
     # peak memory stays flat in the number of states
     valid = np.empty(n, dtype=np.uint8)
-    D.valid_states(Tf, PVf, N0, float(system.T_min), float(system.T_max), D.P_MAX, fixed_volume, valid)
+    D.valid_states(Tf, PVf, N0, float(system.T_min), float(system.T_max), P_MAX, fixed_volume, valid)
+    bits = system._bits
     if scalar_feed:  # one feed for every state: one pattern of zero amounts, given once
-        pats = np.array([system._pattern(int((N0[0] > 0.0) @ system._bits))], dtype=np.int64)
+        keys = [int((N0[0] > 0.0) @ bits)]
+    else:
+        keys = []
+        for a in range(0, n, BLOCK):
+            b = min(n, a + BLOCK)
+            ok = valid[a:b] != 0
+            if ok.any():
+                keys.extend(np.unique((N0[a:b][ok] > 0.0) @ bits).tolist())
+    patterns, ids, _ = compiled.patterns_for(keys)  # one snapshot for the whole batch
+    lookup = dict(zip(keys, ids))
+    if scalar_feed:
+        pats = np.array(ids, dtype=np.int64)
     else:
         pats = np.zeros(n, dtype=np.int64)
         for a in range(0, n, BLOCK):
             b = min(n, a + BLOCK)
             ok = valid[a:b] != 0
             if ok.any():
-                keys = (N0[a:b][ok] > 0.0) @ system._bits
-                unique, inverse = np.unique(keys, return_inverse=True)
-                ids = np.array([system._pattern(int(k)) for k in unique], dtype=np.int64)
-                pats[a:b][ok] = ids[inverse]
-    tail, width = D.row_layout(nc, nr, ne)
-    out = np.empty((n, width))  # one packed row per state (see hipeq.solvers._driver.row_layout)
-    ints = np.empty((n, 4), dtype=np.int64)  # status, iterations, outer iterations, root code
-    liquid = np.empty(n, dtype=np.bool_)
-    threads = numba.get_num_threads()
+                unique, inverse = np.unique((N0[a:b][ok] > 0.0) @ bits, return_inverse=True)
+                pats[a:b][ok] = np.array([lookup[int(k)] for k in unique], dtype=np.int64)[inverse]
+    layout = A.answer_layout(nc, nr, ne)
+    out = np.empty((n, layout.width))  # one packed row per state (hipeq.solvers._arrays.answer_layout)
+    ints = np.empty((n, A.INT_COLUMNS), dtype=np.int64)
+    bad_ln_k = np.zeros(n if system._ln_K is not None else 0, dtype=bool)
     for a in range(0, n, BLOCK):
         b = min(n, a + BLOCK)
         ln_k_user = np.zeros((0, nr))
@@ -149,25 +170,19 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
             ln_k_user = np.zeros((b - a, nr))
             ok = valid[a:b] != 0
             if ok.any():
-                ln_k_user[ok] = system._user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
-        chunk = max(1, min(MAX_CHUNK, -(-(b - a) // (4 * threads))))
+                values = system._user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
+                finite = np.all(np.isfinite(values), axis=1)
+                values[~finite] = 0.0
+                ln_k_user[ok] = values
+                rows_bad = np.flatnonzero(ok)[~finite]
+                valid[a:b][rows_bad] = 0  # that state is invalid input, its message names T
+                bad_ln_k[a:b][rows_bad] = True
+        chunk = max(1, min(MAX_CHUNK, -(-(b - a) // CHUNKS_PER_BLOCK)))
         block_pats = pats if scalar_feed else pats[a:b]
         order = neighbour_order(Tf[a:b], PVf[a:b], block_pats)
-        D.solve_many(*system._static, *system._stacked, Tf[a:b], PVf[a:b], N0[a:b], block_pats, ln_k_user,
-                     valid[a:b], opts_i, opts_f, chunk, order, out[a:b], ints[a:b], liquid[a:b])
-    for arr in (out, ints, liquid, Tf, PVf, N0):
+        D.solve_many(compiled.arrays, patterns, Tf[a:b], PVf[a:b], N0[a:b], block_pats, ln_k_user, valid[a:b],
+                     options, chunk, order, out[a:b], ints[a:b])
+    for arr in (out, ints, Tf, PVf, N0):
         arr.flags.writeable = False
-    reasons = _InvalidReasons(system, Tf, PVf, N0, fixed_volume, valid)
-    s = shape
-
-    def columns(first: int, count: int) -> np.ndarray:  # a view of the packed rows, in the caller's shape
-        return out[:, first:first + count].reshape(s + (count,))
-
-    def column(j: int) -> np.ndarray:
-        return out[:, j].reshape(s)
-
-    return BatchResult(s, Tf.reshape(s), column(tail), column(tail + 1), column(tail + 2), columns(0, nc),
-                       N0.reshape(s + (nc,)), columns(nc, nc), columns(2 * nc, nr), columns(2 * nc + nr, nr),
-                       columns(2 * nc + 2 * nr, nr), columns(2 * nc + 3 * nr, ne), ints[:, 1].reshape(s),
-                       ints[:, 2].reshape(s), ints[:, 0].reshape(s), method, scheme, liquid.reshape(s), fixed_volume,
-                       reasons, system._info)
+    reasons = _InvalidReasons(system.T_min, system.T_max, Tf, PVf, N0, fixed_volume, valid, bad_ln_k)
+    return batch_result(system._info, layout, out, ints, shape, Tf, N0, method, scheme, fixed_volume, reasons)

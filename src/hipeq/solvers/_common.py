@@ -16,11 +16,11 @@ import math
 import numpy as np
 from numba import njit
 
-from hipeq._jit import kernel
+from hipeq._jit import entry, kernel
 from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_reduced_tp
 
 # ---------------------------------------------------------------------------------------------------------
-# status codes (documented in docs/solvers.md and hipeq.solvers.result.STATUS_MESSAGES)
+# status codes (the Python face is hipeq.solvers.result.Status; documented in docs/solvers.md)
 # ---------------------------------------------------------------------------------------------------------
 CONVERGED = 0
 MAX_ITERATIONS = 1
@@ -29,6 +29,24 @@ NO_PHYSICAL_STATE = 3
 SINGULAR = 4
 PRESSURE_NOT_FOUND = 5
 INVALID_INPUT = 6
+OUTSIDE_MODEL_RANGE = 7
+BALANCE_NOT_CLOSED = 8
+
+# reasons that refine a status (the answer's REASON column; texts in hipeq.solvers.result.REASON_TEXTS)
+REASON_NONE = 0
+REASON_BELOW_COVOLUME = 1  # sealed vessel: V is at or below the co-volume of the mixture
+REASON_ABOVE_CEILING = 2  # sealed vessel: the pressure would exceed the ceiling (1e10 Pa)
+REASON_BELOW_FLOOR = 3  # sealed vessel: the pressure would be below the floor (1e-2 Pa)
+REASON_NOT_ONE_PHASE = 4  # sealed vessel: V(P) of the one-phase mixture jumps across the given V
+REASON_VIRIAL_RANGE = 5  # truncated virial with |Z - 1| above its limit
+REASON_LEWIS_RANDALL_RANGE = 6  # Lewis-Randall rule above its pressure limit
+REASON_NOT_FINITE = 7  # an output was not finite
+REASON_ELEMENTS = 8  # an element balance did not close
+REASON_LN_K = 9  # the user's ln K was not finite at this T
+
+# Element balances at convergence: |sum_i a_ei n_i - b_e| <= ELEMENT_RTOL b_e + ELEMENT_ATOL sum_e b_e
+ELEMENT_RTOL = 1e-10
+ELEMENT_ATOL = 1e-15
 
 # evaluation modes of ``evaluate``
 FROZEN_PHI = 0  # keep ln phi as it is in the buffer (nested scheme, inner loop)
@@ -52,8 +70,8 @@ N_F_ROWS = 19
 # J (4, nc, nc)
 J_JAC, J_JAC_TRY, J_AIJ, J_DAIJ = range(4)
 # S (N_S_ROWS, k), k = max(n_reactions, n_element_rows, 1): small vectors
-S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START, S_AUX = range(12)
-N_S_ROWS = 12  # S[S_AUX, 0]: ln(P/P0) of the previous converged state
+S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START, S_AUX, S_ESCALE = range(13)
+N_S_ROWS = 13  # S[S_AUX, 0]: ln(P/P0) of the previous converged state; S_ESCALE: per-element-row scales
 # SM (4, k, k): Newton matrix, its Cholesky factor, and the reduced ln phi Jacobian W^T J W (current, trial)
 SM_H, SM_L, SM_M, SM_M_TRY = range(4)
 # KV (2, nc + ne + 1) and IV (2, nc + ne + 1): the Newton system of the Gibbs minimisation
@@ -61,7 +79,7 @@ KV_RHS, KV_SOL = range(2)
 IV_IDX, IV_PIV = range(2)
 
 
-@njit(cache=True)
+@entry
 def make_work(nc, nr, ne):
     """Work buffers of one chunk of states: (F, J, S, SM, M, KV, IV), see the row constants above."""
     k = max(nr, ne, 1)
@@ -276,6 +294,26 @@ def reaction_residuals(nu, mu, frozen, out):
         out[r] = v
         worst = max(worst, abs(v))
     return worst
+
+
+@kernel
+def elements_closed(A, n, n0):
+    """True when every element balance closes: |sum_i a_ei n_i - b_e| <= ELEMENT_RTOL b_e + ELEMENT_ATOL B,
+    with b_e = sum_i a_ei n0_i and B = sum_e b_e (a relative tolerance with an absolute floor)."""
+    ne, nc = A.shape
+    total = 0.0
+    for e in range(ne):
+        for i in range(nc):
+            total += A[e, i] * n0[i]
+    for e in range(ne):
+        b = 0.0
+        v = 0.0
+        for i in range(nc):
+            b += A[e, i] * n0[i]
+            v += A[e, i] * n[i]
+        if not (abs(v - b) <= ELEMENT_RTOL * b + ELEMENT_ATOL * total):
+            return False
+    return True
 
 
 @kernel

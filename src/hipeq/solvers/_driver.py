@@ -2,54 +2,105 @@
 
 Private layer: arrays and scalars in, ``out`` arrays, status codes per state; nothing here raises.
 
-Per state: temperature-dependent model parameters (``tparams_into``) and g0_i(T) are computed only when T differs
-from the previous state of the chunk; the start is the previous converged state of the chunk when the pattern of
-zero feeds is the same (a warm start, moved by one predicted Newton step for the change of T and P,
-``predict_start``), else an interior point (a cold start); a failed warm-started solve is retried cold. At fixed
-volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's volume n_T Z R T / P to the
-given V (bracketed once the sign of the mismatch has changed; bisection otherwise). Work buffers are allocated
-once per chunk (packed into a few arrays, see hipeq.solvers._common); the chunk's inputs are gathered into
-solving order and its answers scattered back as packed rows (``row_layout``); nothing is allocated inside the
-Newton loops, and every kernel here runs without reference counting (``hipeq._jit.kernel``).
+Per state: the temperature-dependent model parameters (``tparams_into``) and g0_i(T) are computed only when T
+differs from the previous state of the chunk. Then the equilibrium is solved from one or more starts:
+
+- where the model has a single volume root at every composition the active species can reach
+  (``several_roots_possible`` is False: the one-fluid cubic's a/(b R T) stays below Omega_a/Omega_b, i.e. the
+  mixture is above its pseudo-critical temperature whatever its composition; always for the ideal gas, the
+  virial and the Lewis-Randall rule), the state has one stationary point in practice, and the start is the
+  previous converged state of the chunk when the pattern of zero feeds is the same (a warm start, moved by one
+  predicted Newton step for the change of T and P, ``predict_start``), else an interior point (a cold start); a
+  failed warm start is retried cold;
+- otherwise (a species could condense) several stationary points may exist, and the state is solved from the
+  deterministic cold starts of ``COLD_FRACTIONS`` and the converged answer of lowest Gibbs energy (Helmholtz
+  energy in a sealed vessel) is kept, whatever the rest of the batch.
+
+Both solvers polish a converged answer to the rounding level (``POLISH_TOL``), so that the answer does not
+depend on the start either. When the extent method fails and the reactions span every composition change the
+element balances allow, Gibbs minimisation answers instead (the answer's METHOD column says so).
+
+At fixed volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's volume
+n_T Z R T / P to the given V, within P_FLOOR <= P <= P_CEILING (bracketed once the sign of the mismatch has
+changed; bisection otherwise); a bracket that closes on a jump of the volume means that no single phase fills
+the vessel at that density.
+
+A converged answer is checked before it is reported: every element balance closed (``elements_closed``), every
+output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
+Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
+allocated once per chunk (``make_work``); answers are written as one packed float row and one integer row per
+state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
 """
 from __future__ import annotations
 
 import math
 
 import numpy as np
-from numba import njit, prange
+from numba import prange
 
-from hipeq._jit import kernel
-from hipeq.models._kernels import MODEL_CUBIC, R, ROOT_LIQUID, tparams_into
-from hipeq.solvers._common import (CONVERGED, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU, F_N, F_N0_PREV,
-                                   F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
-                                   PRESSURE_NOT_FOUND, S_AUX, S_D, S_LNK, S_RHS, S_SCALE, S_XI, S_XI_PREV,
-                                   S_XI_START, SM_L, adjust_g0, element_residuals, g0_into, make_work)
+from hipeq._jit import entry, inline_kernel, kernel, parallel_entry
+from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
+                                   OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
+from hipeq.models.inputs import P_MAX
+from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, METHOD, METHOD_EXTENT, METHOD_GIBBS, OUTER,
+                                   REASON, ROOT, STATUS, answer_layout)
+from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU,
+                                   F_N, F_N0_PREV, F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
+                                   OUTSIDE_MODEL_RANGE, PRESSURE_NOT_FOUND, REASON_ABOVE_CEILING,
+                                   REASON_BELOW_COVOLUME, REASON_BELOW_FLOOR, REASON_ELEMENTS,
+                                   REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
+                                   REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, S_AUX, S_D, S_LNK, S_RHS, S_SCALE,
+                                   S_XI, S_XI_PREV, S_XI_START, SINGULAR, SM_L, adjust_g0, element_residuals,
+                                   elements_closed, g0_into, make_work)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
 P_STANDARD = 1e5  # [Pa]
 LN_P_STANDARD = math.log(P_STANDARD)
-LIQUID_LIKE_REDUCED_VOLUME = 1.75  # v/b below this is liquid-like (our rule, DEVELOPERS.md)
-P_FLOOR = 1e-2  # [Pa] pressure limits of the sealed-vessel search
-P_CEILING = 1e10  # [Pa]
-P_MAX = 1e10  # [Pa] upper limit of a given P (the same sanity limit as the fugacity models)
+P_FLOOR = 1e-2  # [Pa] pressure limits of a sealed vessel
+P_CEILING = P_MAX  # [Pa] the fugacity models' upper limit of P
 MAX_PRESSURE_STEPS = 80
-
-# integer options (opts_i)
-OPT_METHOD, OPT_COUPLED, OPT_FIXED_VOLUME, OPT_MAX_ITER, OPT_USER_LNK, OPT_WARM, OPT_GUESS = range(7)
-N_OPT_I = 7
-# float options (opts_f)
-OPT_TOL, OPT_TOL_GIBBS, OPT_TOL_VOLUME = range(3)
-N_OPT_F = 3
-METHOD_EXTENT = 0
-METHOD_GIBBS = 1
+# Model ranges (our limits, docs/solvers.md): the truncated virial (second coefficient only) is used while
+# |Z - 1| <= 0.5 (Smith, Van Ness & Abbott 2005, sect. 3.6, give reduced volumes of about 2 and above, i.e.
+# moderate departures from the ideal gas, for the two-term form; the bound here is common practice); the
+# Lewis-Randall rule up to 2e8 Pa, twice the 1000 atm to which docs/ammonia_validation.md checks it.
+VIRIAL_MAX_DEPARTURE = 0.5
+LEWIS_RANDALL_P_MAX = 2e8  # [Pa]
+# deterministic cold starts n0 + eps (p - f): eps as fractions of the largest step that keeps n >= 0
+COLD_FRACTIONS = (0.5, 0.02, 0.98)
+START_GUESS = 0
+START_WARM = 1
+START_COLD = 2
 
 
 @kernel
-def _cold_start(n0, active, direction, xdir, nr, F, S):
-    """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps half the largest step keeping n >= 0
-    (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
+def several_roots_possible(code, T, aij, bi, consts, active):
+    """True when the cubic could have three volume roots at some composition of the active species at T [K].
+
+    With the one-fluid rule, a = sum_ij y_i y_j a_ij <= c (sum_i y_i sqrt(a_i))^2 <= c b max_i(a_i / b_i)
+    (Cauchy-Schwarz; c = max(1, max_ij a_ij / sqrt(a_i a_j)) covers negative k_ij), and the isotherm of a cubic
+    with fixed a and b is monotonic (one root at every P) when a / (b R T) < Omega_a / Omega_b (its critical
+    condition; Michelsen & Mollerup 2007, ch. 3). So this is False only when no composition can have a van der
+    Waals loop. Always False for the other models (one root per state)."""
+    if code != MODEL_CUBIC:
+        return False
+    nc = bi.shape[0]
+    c = 1.0
+    ratio = 0.0
+    for i in range(nc):
+        if not active[i] or not (bi[i] > 0.0):
+            continue
+        ratio = max(ratio, aij[i, i] / (bi[i] * R * T))
+        for j in range(i + 1, nc):
+            if active[j] and aij[i, i] > 0.0 and aij[j, j] > 0.0:
+                c = max(c, aij[i, j] / math.sqrt(aij[i, i] * aij[j, j]))
+    return c * ratio >= consts[OMEGA_A] / consts[OMEGA_B]
+
+
+@kernel
+def _cold_start(n0, active, direction, xdir, nr, fraction, F, S):
+    """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps ``fraction`` of the largest step keeping
+    n >= 0 (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
     nc = n0.shape[0]
     eps = np.inf
     for i in range(nc):
@@ -57,7 +108,7 @@ def _cold_start(n0, active, direction, xdir, nr, F, S):
             eps = min(eps, n0[i] / -direction[i])
     if not math.isfinite(eps):
         eps = 0.0
-    eps *= 0.5
+    eps *= fraction
     for i in range(nc):
         v = n0[i] + eps * direction[i] if active[i] else 0.0
         if active[i] and not (v > 0.0):
@@ -85,7 +136,7 @@ def _start_from_extents(n0, nu, active, F, S):
     return True
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
                        max_iter, F, J, S, SM, M, KV, IV):
     ln_p = math.log(P) - LN_P_STANDARD
@@ -97,15 +148,33 @@ def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, 
 
 
 @kernel
+def _boundary_reason(code, at_ceiling, V, n_t, F):
+    """Why a sealed-vessel search ended at a pressure limit."""
+    if not at_ceiling:
+        return REASON_BELOW_FLOOR
+    if code == MODEL_CUBIC:
+        b = 0.0
+        for i in range(F.shape[1]):
+            b += F[F_Y, i] * F[F_BI, i]
+        if V <= n_t * b:
+            return REASON_BELOW_COVOLUME
+    return REASON_ABOVE_CEILING
+
+
+@kernel
 def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
                      tol, tol_g, tol_v, max_iter, F, J, S, SM, M, KV, IV):
-    """Outer safeguarded secant on s = ln P for ln(n_T Z R T / P) = ln V. Returns (status, iterations,
-    outer, n_T, Z, root, P)."""
+    """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
+    (status, reason, iterations, outer, n_T, Z, root, P)."""
     nc = n0.shape[0]
     nr = S.shape[1]
-    s = math.log(P_guess)
     s_floor = math.log(P_FLOOR)
     s_ceiling = math.log(P_CEILING)
+    s = math.log(P_guess) if P_guess > 0.0 else s_floor
+    if not (s >= s_floor):  # also NaN
+        s = s_floor
+    if s > s_ceiling:
+        s = s_ceiling
     lo = s_floor
     hi = s_ceiling
     have_lo = False
@@ -123,6 +192,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     n_t = 0.0
     z = 1.0
     root = 0
+    P = math.exp(s)
     for k in range(MAX_PRESSURE_STEPS):
         P = math.exp(s)
         status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
@@ -140,23 +210,26 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
             s = 0.5 * (s + lo) if have_lo else s - 1.0
             have_prev = False
             if s <= s_floor:
-                return PRESSURE_NOT_FOUND, total, k + 1, n_t, z, root, P
+                return PRESSURE_NOT_FOUND, REASON_NONE, total, k + 1, n_t, z, root, P
             continue
         if status != CONVERGED:
-            return status, total, k + 1, n_t, z, root, P
+            return status, REASON_NONE, total, k + 1, n_t, z, root, P
         for i in range(nc):
             F[F_N_PREV, i] = F[F_N, i]
         for r in range(nr):
             S[S_XI_START, r] = S[S_XI, r]
         h = math.log(n_t * z * R * T / P) - ln_v
         if abs(h) <= tol_v:
-            return CONVERGED, total, k + 1, n_t, z, root, P
+            return CONVERGED, REASON_NONE, total, k + 1, n_t, z, root, P
         if h > 0.0:
             lo = s
             have_lo = True
         else:
             hi = s
             have_hi = True
+        if have_lo and have_hi and hi - lo < 1e-12:
+            # the bracket has closed on a jump of the volume: no single phase fills the vessel here
+            return PRESSURE_NOT_FOUND, REASON_NOT_ONE_PHASE, total, k + 1, n_t, z, root, P
         slope = -1.0
         if have_prev and s != prev_s:
             slope = (h - prev_h) / (s - prev_s)
@@ -167,131 +240,56 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
         s_new = s + step
         if (have_lo and s_new <= lo) or (have_hi and s_new >= hi):
             s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
-        if s_new <= s_floor or s_new >= s_ceiling:
-            return PRESSURE_NOT_FOUND, total, k + 1, n_t, z, root, P
+        if s_new >= s_ceiling:
+            if s >= s_ceiling:  # already at the ceiling and still too large a volume
+                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, F), total, k + 1, n_t, z, root,
+                        P)
+            s_new = s_ceiling
+        elif s_new <= s_floor:
+            if s <= s_floor:
+                return PRESSURE_NOT_FOUND, REASON_BELOW_FLOOR, total, k + 1, n_t, z, root, P
+            s_new = s_floor
         prev_s = s
         prev_h = h
         have_prev = True
         s = s_new
-    return PRESSURE_NOT_FOUND, total, MAX_PRESSURE_STEPS, n_t, z, root, math.exp(s)
+    reason = REASON_NOT_ONE_PHASE if (have_lo and have_hi) else REASON_NONE
+    return PRESSURE_NOT_FOUND, reason, total, MAX_PRESSURE_STEPS, n_t, z, root, P
 
 
-@njit(cache=True, _nrt=False, inline='always')
-def solve_state(system, T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T, warm, work, out_species,
-                out_reactions, element_res):
-    """Solve one state; writes the per-state outputs and returns (status, iterations, outer, P, V, Z, root,
-    liquid_like). ``out_species`` rows: amounts, ln phi; ``out_reactions`` rows: extents, ln K, residuals.
-    ``new_T``: recompute the temperature-dependent parameters; ``warm``: the work buffers hold a converged
-    previous state of the same pattern (rows F_N_PREV, F_N0_PREV, S_XI_PREV). ``system`` is the tuple of the
-    system's arrays (see ``solve_many``); inlined into its callers (one call site each), so that the few dozen
-    arrays are not handed over per state."""
-    (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir,
-     pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull) = system
-    F, J, S, SM, M, KV, IV = work
+@inline_kernel
+def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
+            T, F, S):
+    """Write the current iterate (rows F_N, F_LNPHI, F_MU, S_XI of the work buffers) as the answer of a state."""
     nc = n0.shape[0]
     nr = nu.shape[0]
-    method = opts_i[OPT_METHOD]
-    coupled = opts_i[OPT_COUPLED] != 0
-    max_iter = opts_i[OPT_MAX_ITER]
-    tol = opts_f[OPT_TOL]
-    tol_g = opts_f[OPT_TOL_GIBBS]
-    g0 = F[F_G0]
-    ln_k = S[S_LNK]
-    if new_T:
-        tparams_into(code, T, comp, consts, kmat, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
-        g0_into(T, u_lo, t_h, table, g0)
-        if opts_i[OPT_USER_LNK] == 0:
-            for r in range(nr):
-                v = 0.0
-                for i in range(nc):
-                    v -= nu[r, i] * g0[i]
-                ln_k[r] = v
-    if opts_i[OPT_USER_LNK] != 0:
-        if not new_T:
-            g0_into(T, u_lo, t_h, table, g0)
-        adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k)
-        for r in range(nr):
-            ln_k[r] = ln_k_user[r]
-    active = pe_active[pat] if method == METHOD_EXTENT else pg_active[pat]
-    n_feed = 0.0
     for i in range(nc):
-        n_feed += n0[i]
-    # ---- start
-    started = False
-    if opts_i[OPT_GUESS] != 0:
-        if method == METHOD_EXTENT:
-            for r in range(nr):
-                S[S_XI, r] = guess[r]
-            started = _start_from_extents(n0, nu, active, F, S)
-        else:
-            started = True
-            for i in range(nc):
-                v = guess[i] if active[i] else 0.0
-                F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
-    elif warm:
-        same = True
-        prev_total = 0.0
-        for i in range(nc):
-            prev_total += F[F_N0_PREV, i]
-            if F[F_N0_PREV, i] != n0[i]:
-                same = False
-        if same:
-            started = True
-            for i in range(nc):
-                F[F_N, i] = F[F_N_PREV, i]
-            for r in range(nr):
-                S[S_XI, r] = S[S_XI_PREV, r]
-            if method == METHOD_EXTENT and opts_i[OPT_FIXED_VOLUME] == 0:
-                predict_start(pe_W[pat], pe_Zb[pat], pe_neff[pat], active, g0, F[F_G0_PREV],
-                              math.log(PV) - LN_P_STANDARD - S[S_AUX, 0], SM[SM_L], S[S_SCALE], S[S_RHS], S[S_D],
-                              F[F_N], S[S_XI])
-        elif method == METHOD_EXTENT:
-            for r in range(nr):
-                S[S_XI, r] = S[S_XI_PREV, r] * n_feed / prev_total
-            started = _start_from_extents(n0, nu, active, F, S)
-        else:
-            started = True
-            for i in range(nc):
-                v = F[F_N_PREV, i] * n_feed / prev_total
-                F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
-    if not started:
-        _cold_start(n0, active, pe_dir[pat] if method == METHOD_EXTENT else pg_dir[pat], pe_xdir[pat], nr, F, S)
-    # ---- solve
-    P = PV
-    if opts_i[OPT_FIXED_VOLUME] != 0:
-        status, iters, outer, n_t, z, root, P = _solve_at_volume(
-            method, code, T, PV, n_feed * R * T / PV, n0, pe_W[pat], pe_Zb[pat], pe_neff[pat], pg_Q[pat],
-            pg_neq[pat], pg_N[pat], pg_nnull[pat], active, consts, coupled, tol, tol_g, opts_f[OPT_TOL_VOLUME],
-            max_iter, F, J, S, SM, M, KV, IV)
-    else:
-        status, iters, outer, n_t, z, root = _solve_at_pressure(
-            method, code, T, P, n0, pe_W[pat], pe_Zb[pat], pe_neff[pat], pg_Q[pat], pg_neq[pat], pg_N[pat],
-            pg_nnull[pat], active, consts, coupled, tol, tol_g, max_iter, F, J, S, SM, M, KV, IV)
-    # ---- outputs
-    for i in range(nc):
-        out_species[0, i] = F[F_N, i]
-        out_species[1, i] = F[F_LNPHI, i] if root >= 0 else 0.0
+        row[layout.amounts + i] = F[F_N, i]
+        row[layout.ln_phis + i] = F[F_LNPHI, i] if root >= 0 else 0.0
     for r in range(nr):
         frozen = False
         for i in range(nc):
             if nu[r, i] != 0.0 and not active[i]:
                 frozen = True
-        out_reactions[1, r] = ln_k[r]
+        row[layout.ln_k + r] = ln_k[r]
         v = 0.0
         if not frozen and root >= 0:
             for i in range(nc):
                 v += nu[r, i] * F[F_MU, i]
-        out_reactions[2, r] = v
+        row[layout.residuals + r] = v
         if method == METHOD_EXTENT:
-            out_reactions[0, r] = S[S_XI, r]
+            row[layout.extents + r] = S[S_XI, r]
         else:
             # extents of the Gibbs answer, xi = nu_pinv^T (n - n0) (exact when n - n0 is in the span of nu)
             v = 0.0
             for i in range(nc):
                 v += nu_pinv[i, r] * (F[F_N, i] - n0[i])
-            out_reactions[0, r] = v
-    element_residuals(A, F[F_N], n0, element_res)
-    V = n_t * z * R * T / P
+            row[layout.extents + r] = v
+    element_residuals(A, F[F_N], n0, row[layout.element_residuals:layout.element_residuals + A.shape[0]])
+    row[layout.P] = P
+    row[layout.V] = V
+    row[layout.Z] = z
+    row[layout.G] = G
     liquid = root == ROOT_LIQUID
     if code == MODEL_CUBIC and root >= 0:
         b = 0.0
@@ -299,71 +297,211 @@ def solve_state(system, T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, new_T,
             b += F[F_Y, i] * F[F_BI, i]
         if b > 0.0 and (z * R * T / P) / b < LIQUID_LIKE_REDUCED_VOLUME:
             liquid = True
-    if status == CONVERGED:
-        for i in range(nc):
-            F[F_N_PREV, i] = F[F_N, i]
-            F[F_N0_PREV, i] = n0[i]
-            F[F_G0_PREV, i] = g0[i]
-        S[S_AUX, 0] = math.log(P) - LN_P_STANDARD
-        for r in range(nr):
-            S[S_XI_PREV, r] = S[S_XI, r]
-    return status, iters, outer, P, V, z, root, liquid
+    ints[STATUS] = status
+    ints[REASON] = reason
+    ints[ROOT] = root
+    ints[METHOD] = method
+    ints[LIQUID] = 1 if liquid else 0
 
 
-@njit(cache=True)
-def solve_one(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-              pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-              T, PV, n0, pat, ln_k_user, guess, opts_i, opts_f, out_species, out_reactions, element_res, scalars):
-    """One state (the scalar fast path); a failed start from ``guess`` is retried cold. Returns (status,
-    iterations, outer, root, liquid_like); P, V, Z in ``scalars``."""
+@inline_kernel
+def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
+    """Hold a converged answer to what status 0 promises; make every output finite whatever the status."""
+    finite = True
+    for a in range(layout.width):
+        if not math.isfinite(row[a]):
+            row[a] = 0.0
+            finite = False
+    if ints[STATUS] != CONVERGED:
+        return
     nc = n0.shape[0]
-    work = make_work(nc, nu.shape[0], max(A.shape[0], pg_Q.shape[1]))
-    system = (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir,
-              pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull)
-    no = nc < 0  # run-time booleans, not literals: one compiled solve_state for every caller
-    new_T = not no
-    options = opts_i
-    iters = 0
-    outer = 0
-    while True:  # one call site of the inlined solve_state
-        status, it, ou, P, V, z, root, liquid = solve_state(system, T, PV, n0, pat, ln_k_user, guess, options,
-                                                            opts_f, new_T, no, work, out_species, out_reactions,
-                                                            element_res)
-        iters += it
-        outer += ou
-        if status == CONVERGED or options[OPT_GUESS] == 0:
-            break
-        options = opts_i.copy()  # a failed start from the guess: once more from a cold start
-        options[OPT_GUESS] = 0
-        new_T = no
-    scalars[0] = P
-    scalars[1] = V
-    scalars[2] = z
-    return status, iters, outer, root, liquid
+    if not finite:
+        ints[STATUS] = SINGULAR
+        ints[REASON] = REASON_NOT_FINITE
+    elif not elements_closed(A, row[layout.amounts:layout.amounts + nc], n0):
+        ints[STATUS] = BALANCE_NOT_CLOSED
+        ints[REASON] = REASON_ELEMENTS
+    elif code == MODEL_VIRIAL and abs(row[layout.Z] - 1.0) > VIRIAL_MAX_DEPARTURE:
+        ints[STATUS] = OUTSIDE_MODEL_RANGE
+        ints[REASON] = REASON_VIRIAL_RANGE
+    elif code == MODEL_LEWIS_RANDALL and row[layout.P] > LEWIS_RANDALL_P_MAX:
+        ints[STATUS] = OUTSIDE_MODEL_RANGE
+        ints[REASON] = REASON_LEWIS_RANDALL_RANGE
+    elif fixed_volume and not (P_FLOOR <= row[layout.P] <= P_CEILING):
+        ints[STATUS] = PRESSURE_NOT_FOUND
+        ints[REASON] = REASON_ABOVE_CEILING if row[layout.P] > P_CEILING else REASON_BELOW_FLOOR
 
 
-def row_layout(nc, nr, ne):
-    """Offsets in the packed per-state output row of ``solve_many``: amounts (nc), ln phi (nc), extents (nr),
-    ln K (nr), residuals (nr), element residuals (ne), then P, V, Z. Returns (offset of P, row length)."""
-    tail = 2 * nc + 3 * nr + ne
-    return tail, tail + 3
+@inline_kernel
+def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T, warm, work, row, ints):
+    """Solve one state; writes its float answer row ``row`` (``answer_layout``) and integer row ``ints``
+    (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID). ``new_T``: recompute the temperature-dependent
+    parameters; ``warm``: the work buffers hold a converged previous state of the same pattern (rows F_N_PREV,
+    F_N0_PREV, S_XI_PREV). Returns True when the answer can warm-start the next state. Compiled into its callers
+    (one call site each)."""
+    F, J, S, SM, M, KV, IV = work
+    nc = n0.shape[0]
+    nu = system.nu
+    nr = nu.shape[0]
+    A = system.elements
+    layout = answer_layout(nc, nr, A.shape[0])
+    code = system.model_code
+    consts = system.model_constants
+    g0 = F[F_G0]
+    ln_k = S[S_LNK]
+    if new_T:
+        tparams_into(code, T, system.components, consts, system.kij, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
+        g0_into(T, system.g0_ln_t0, system.g0_step, system.g0_nodes, g0)
+        if not opts.user_ln_k:
+            for r in range(nr):
+                v = 0.0
+                for i in range(nc):
+                    v -= nu[r, i] * g0[i]
+                ln_k[r] = v
+    if opts.user_ln_k:
+        if not new_T:
+            g0_into(T, system.g0_ln_t0, system.g0_step, system.g0_nodes, g0)
+        adjust_g0(g0, nu, system.nu_pinv, ln_k_user, ln_k)
+        for r in range(nr):
+            ln_k[r] = ln_k_user[r]
+    n_feed = 0.0
+    for i in range(nc):
+        n_feed += n0[i]
+    ambiguous = several_roots_possible(code, T, J[J_AIJ], F[F_BI], consts, patterns.gibbs_active[pat])
+    fixed_volume = opts.fixed_volume
+    recorded = False
+    total_iterations = 0
+    total_outer = 0
+    best = np.inf
+    method = opts.method
+    for phase in range(2):  # the requested method, then Gibbs minimisation when the extent method failed
+        if phase == 1:
+            failed = ints[STATUS] == STALLED or ints[STATUS] == SINGULAR  # not the caller's iteration limit
+            if not failed or method != METHOD_EXTENT or not system.complete:
+                break
+            method = METHOD_GIBBS
+        if method == METHOD_EXTENT:
+            active = patterns.extent_active[pat]
+            direction = patterns.extent_start[pat]
+        else:
+            active = patterns.gibbs_active[pat]
+            direction = patterns.gibbs_start[pat]
+        special = START_COLD
+        if phase == 0 and opts.guess:
+            special = START_GUESS
+        elif phase == 0 and warm and not ambiguous:
+            special = START_WARM
+        first_cold = 0 if special == START_COLD else 1
+        n_starts = first_cold + (len(COLD_FRACTIONS) if ambiguous else 1)
+        for k in range(n_starts):
+            started = False
+            if k < first_cold and special == START_GUESS:
+                if method == METHOD_EXTENT:
+                    for r in range(nr):
+                        S[S_XI, r] = guess[r]
+                    started = _start_from_extents(n0, nu, active, F, S)
+                else:
+                    started = True
+                    for i in range(nc):
+                        F[F_N, i] = max(guess[i], 1e-14 * n_feed) if active[i] else 0.0
+            elif k < first_cold:  # warm start from the previous state of the chunk
+                same = True
+                prev_total = 0.0
+                for i in range(nc):
+                    prev_total += F[F_N0_PREV, i]
+                    if F[F_N0_PREV, i] != n0[i]:
+                        same = False
+                if same:
+                    started = True
+                    for i in range(nc):
+                        F[F_N, i] = F[F_N_PREV, i]
+                    for r in range(nr):
+                        S[S_XI, r] = S[S_XI_PREV, r]
+                    if method == METHOD_EXTENT and not fixed_volume:
+                        predict_start(patterns.extent_directions[pat], patterns.extent_basis[pat],
+                                      patterns.extent_rank[pat], active, g0, F[F_G0_PREV],
+                                      math.log(PV) - LN_P_STANDARD - S[S_AUX, 0], SM[SM_L], S[S_SCALE], S[S_RHS],
+                                      S[S_D], F[F_N], S[S_XI])
+                elif method == METHOD_EXTENT:
+                    for r in range(nr):
+                        S[S_XI, r] = S[S_XI_PREV, r] * n_feed / prev_total
+                    started = _start_from_extents(n0, nu, active, F, S)
+                else:
+                    started = True
+                    for i in range(nc):
+                        v = F[F_N_PREV, i] * n_feed / prev_total
+                        F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
+            if not started:
+                fraction = COLD_FRACTIONS[k - first_cold] if k >= first_cold else COLD_FRACTIONS[0]
+                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, F, S)
+            # ---- solve
+            reason = REASON_NONE
+            P = PV
+            if fixed_volume:
+                status, reason, iters, outer, n_t, z, root, P = _solve_at_volume(
+                    method, code, T, PV, n_feed * R * T / PV, n0, patterns.extent_directions[pat],
+                    patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
+                    patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts,
+                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, F, J, S, SM, M,
+                    KV, IV)
+            else:
+                status, iters, outer, n_t, z, root = _solve_at_pressure(
+                    method, code, T, P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
+                    patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
+                    patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled, opts.tol,
+                    opts.tol_gibbs, opts.max_iterations, F, J, S, SM, M, KV, IV)
+            total_iterations += iters
+            total_outer += outer
+            V = n_t * z * R * T / P
+            # the objective compared between starts: G/RT at fixed P, A/RT = G/RT - P V/(R T) at fixed V
+            G = 0.0
+            for i in range(nc):
+                if active[i]:
+                    G += F[F_N, i] * F[F_MU, i]
+            value = G - n_t * z if fixed_volume else G
+            if status == CONVERGED:
+                if not recorded or ints[STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
+                    _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
+                            system.nu_pinv, A, code, T, F, S)
+                    recorded = True
+                    best = value
+                if not ambiguous:
+                    break
+            elif not recorded or ints[STATUS] != CONVERGED:
+                _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
+                        system.nu_pinv, A, code, T, F, S)
+                recorded = True
+    ints[ITERATIONS] = total_iterations
+    ints[OUTER] = total_outer
+    _check_answer(row, ints, layout, code, n0, A, fixed_volume)
+    if ints[STATUS] != CONVERGED or ints[METHOD] != opts.method:
+        return False
+    # remember the answer for a warm start of the next state
+    for i in range(nc):
+        F[F_N_PREV, i] = row[layout.amounts + i]
+        F[F_N0_PREV, i] = n0[i]
+        F[F_G0_PREV, i] = g0[i]
+    S[S_AUX, 0] = math.log(row[layout.P]) - LN_P_STANDARD
+    for r in range(nr):
+        S[S_XI_PREV, r] = row[layout.extents + r]
+    return True
 
 
-row_layout_jit = njit(cache=True, inline="always")(row_layout)
+@entry
+def solve_one(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, row, ints):
+    """One state (the scalar path): answers in ``row`` (float, ``answer_layout``) and ``ints`` (INT_COLUMNS)."""
+    work = make_work(n0.shape[0], system.nu.shape[0], max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
+    solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, True, False, work, row, ints)
 
 
 @kernel
-def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, rows, ints, liquid, work):
+def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, rows, ints, work):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers, each warm-started from the previous converged one of the same pattern (see ``solve_many``); the
-    answers go to ``rows`` (one packed row per state, see ``row_layout``), ``ints`` (status, iterations, outer
-    iterations, root code) and ``liquid``."""
+    buffers, each warm-started from the previous converged one of the same pattern where that is safe (see the
+    module docstring); the answers go to ``rows`` and ``ints``."""
     nc = N0.shape[1]
-    nr = system[7].shape[0]  # nu
-    ne = system[9].shape[0]  # A: element rows
-    tail, _ = row_layout_jit(nc, nr, ne)
-    empty = opts_f[0:0]
-    no = nc < 0  # a run-time boolean, not a literal: one compiled solve_state for every caller
+    layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
+    empty = T[0:0]
     last_T = -1.0
     warm = False
     last_pat = -1
@@ -372,74 +510,42 @@ def _solve_chunk(system, T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, rows
         if valid[k] == 0:
             row[:] = 0.0
             for i in range(nc):
-                row[i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
-            fixed_volume = opts_i[OPT_FIXED_VOLUME] != 0
+                row[layout.amounts + i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
             ok = math.isfinite(PV[k])
-            row[tail] = PV[k] if (ok and not fixed_volume) else 0.0
-            row[tail + 1] = PV[k] if (ok and fixed_volume) else 0.0
-            ints[k, 0] = INVALID_INPUT
-            ints[k, 1] = 0
-            ints[k, 2] = 0
-            ints[k, 3] = -1
-            liquid[k] = False
+            row[layout.P] = PV[k] if (ok and not opts.fixed_volume) else 0.0
+            row[layout.V] = PV[k] if (ok and opts.fixed_volume) else 0.0
+            ints[k, :] = 0
+            ints[k, STATUS] = INVALID_INPUT
+            ints[k, ROOT] = -1
+            ints[k, METHOD] = opts.method
             continue
         pat = pats[k]
         user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
-        use_warm = warm and pat == last_pat and opts_i[OPT_WARM] != 0
-        new_T = T[k] != last_T
-        it = 0
-        ou = 0
-        species = row[0:2 * nc].reshape((2, nc))
-        reactions = row[2 * nc:2 * nc + 3 * nr].reshape((3, nr))
-        elements = row[2 * nc + 3 * nr:tail]
-        while True:  # one call site of the inlined solve_state
-            st, it1, ou1, P, V, z, root, liq = solve_state(system, T[k], PV[k], N0[k], pat, user, empty, opts_i,
-                                                           opts_f, new_T, use_warm, work, species, reactions,
-                                                           elements)
-            it += it1
-            ou += ou1
-            if st == CONVERGED or not use_warm:
-                break
-            use_warm = no  # a failed warm start: once more from a cold start
-            new_T = no
+        use_warm = warm and pat == last_pat and opts.warm
+        warm = solve_state(system, patterns, T[k], PV[k], N0[k], pat, user, empty, opts, T[k] != last_T, use_warm,
+                           work, row, ints[k])
         last_T = T[k]
-        warm = st == CONVERGED
         last_pat = pat
-        row[tail] = P
-        row[tail + 1] = V
-        row[tail + 2] = z
-        ints[k, 0] = st
-        ints[k, 1] = it
-        ints[k, 2] = ou
-        ints[k, 3] = root
-        liquid[k] = liq
 
 
-@njit(cache=True, parallel=True)
-def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
-               pe_active, pe_Zb, pe_W, pe_neff, pe_dir, pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull,
-               T, PV, N0, pats, ln_k_user, valid, opts_i, opts_f, chunk, order, out, out_ints, out_liquid):
+@parallel_entry
+def solve_many(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints):
     """Many states (T[k], PV[k], N0[k]) in parallel chunks of ``chunk`` consecutive entries of ``order`` (a
-    permutation that puts similar states next to each other), warm-started along a chunk, a failed warm start
-    retried cold. States with valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per
-    state or a single one for all. ``ln_k_user`` has shape
-    (n, nr) or (0, nr). ``out`` (n, row length) receives one packed row per state (``row_layout``), ``out_ints``
-    (n, 4) status, iterations, outer iterations, root code, ``out_liquid`` (n,) the liquid-like flag: a state's
-    answers are three contiguous pieces of memory, each written once."""
+    permutation that puts similar states next to each other), warm-started along a chunk where that is safe.
+    States with valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per state or a
+    single one for all; ``ln_k_user`` has shape (n, nr) or (0, nr). ``out`` (n, width) receives one packed float
+    row per state (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row."""
     n = T.shape[0]
     nc = N0.shape[1]
-    nr = nu.shape[0]
+    nr = system.nu.shape[0]
     n_chunks = (n + chunk - 1) // chunk
     width = out.shape[1]
-    system = (code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A, pe_active, pe_Zb, pe_W, pe_neff, pe_dir,
-              pe_xdir, pg_active, pg_Q, pg_neq, pg_dir, pg_N, pg_nnull)
     for c in prange(n_chunks):
         first = c * chunk
         m = min(n, first + chunk) - first
-        work = make_work(nc, nr, max(A.shape[0], pg_Q.shape[1]))
+        work = make_work(nc, nr, max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
         # the chunk's states gathered into solving order, and its answers scattered back at the end: the
-        # solve itself then reads and writes memory in sequence (in the caller's order every state was a few
-        # cache misses)
+        # solve itself then reads and writes memory in sequence
         Tl = np.empty(m)
         PVl = np.empty(m)
         N0l = np.empty((m, nc))
@@ -447,11 +553,10 @@ def solve_many(code, comp, consts, kmat, u_lo, t_h, table, nu, nu_pinv, A,
         validl = np.empty(m, dtype=np.uint8)
         userl = np.empty((m if ln_k_user.shape[0] > 0 else 0, nr))
         rows = np.empty((m, width))
-        ints = np.empty((m, 4), dtype=np.int64)
-        liq = np.empty(m, dtype=np.bool_)
+        ints = np.empty((m, INT_COLUMNS), dtype=np.int64)
         _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, Tl, PVl, N0l, patl, userl, validl, opts_i, opts_f, rows, ints, liq, work)
-        _scatter(order[first:first + m], rows, ints, liq, out, out_ints, out_liquid)
+        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, validl, opts, rows, ints, work)
+        _scatter(order[first:first + m], rows, ints, out, out_ints)
 
 
 @kernel
@@ -470,15 +575,14 @@ def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl
 
 
 @kernel
-def _scatter(order, rows, ints, liq, out, out_ints, out_liquid):
+def _scatter(order, rows, ints, out, out_ints):
     """Row l of the chunk's answers into row order[l] of the outputs."""
     for l in range(order.shape[0]):
         k = order[l]
         for a in range(rows.shape[1]):
             out[k, a] = rows[l, a]
-        for a in range(4):
+        for a in range(ints.shape[1]):
             out_ints[k, a] = ints[l, a]
-        out_liquid[k] = liq[l]
 
 # ---------------------------------------------------------------------------------------------------------
 # batch preparation (one pass over the states each, no temporaries)

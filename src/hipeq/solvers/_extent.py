@@ -28,9 +28,7 @@ the true residuals meet the tolerance.
 """
 from __future__ import annotations
 
-from numba import njit
-
-from hipeq._jit import kernel
+from hipeq._jit import inline_kernel, kernel
 from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY,
                                    F_SCRATCH, F_Y, F_Y_TRY, FROZEN_PHI, J_JAC, MAX_ITERATIONS, NO_PHYSICAL_STATE,
                                    S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, SM_M, SM_M_TRY, STALLED,
@@ -40,9 +38,11 @@ FRACTION_TO_BOUNDARY = 0.99
 ARMIJO = 1e-4
 MAX_BACKTRACKS = 40
 CHORD_SWITCH = 1e-5  # coupled scheme: below this residual the last Jacobian of ln phi is reused
+POLISH_TOL = 1e-13  # after meeting the tolerance, Newton steps continue down to this (see extent_solve)
+MAX_POLISH = 3
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _gradient(W, mu, active, neff, grad):
     nc = W.shape[0]
     worst = 0.0
@@ -56,7 +56,7 @@ def _gradient(W, mu, active, neff, grad):
     return worst
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _hessian(W, n, n_t, M, with_phi, active, neff, H):
     """H = W^T diag(1/n) W - (W^T 1)(1^T W)/n_T [+ M/n_T, M = W^T (n_T d ln phi/d n) W when with_phi]."""
     nc = W.shape[0]
@@ -77,7 +77,7 @@ def _hessian(W, n, n_t, M, with_phi, active, neff, H):
             H[u, t] = v
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, n_t, z, g, views):
     """One damped Newton step from the current point (n, y, ln phi, mu and M = W^T J W in ``views``; grad holds
     the gradient). On success the accepted point replaces the current one and (-1, n_T, Z, root, G) is returned;
@@ -221,6 +221,8 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
     inner_tol = 0.1 * tol
     iterations = 0
     outer = 0
+    polish = 0
+    last = 0.0
     inner = False  # nested scheme: inside the loop with ln phi frozen
     while True:
         gmax = _gradient(W, mu, active, neff, grad)
@@ -233,8 +235,13 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
             gmax = _gradient(W, mu, active, neff, grad)
         if not inner:
             if gmax <= tol:
-                return CONVERGED, iterations, outer, n_t, z, root
-            if iterations >= max_iter:
+                # met; polish while the steps still halve the residual, so that the answer does not depend on
+                # the start (a warm start stopping at 5e-12 and a cold one at 1e-16 would differ by ~1e-12)
+                if gmax <= POLISH_TOL or polish >= MAX_POLISH or (polish > 0 and gmax > 0.5 * last):
+                    return CONVERGED, iterations, outer, n_t, z, root
+                polish += 1
+                last = gmax
+            elif iterations >= max_iter:
                 return MAX_ITERATIONS, iterations, outer, n_t, z, root
             if not coupled:
                 outer += 1
@@ -246,6 +253,8 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
         status, n_t, z_new, root_new, g = _step(trial, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi,
                                                 consts, n_t, z, g, views)
         if status >= 0:
+            if polish > 0:  # the tolerance was met before the polish step
+                return CONVERGED, iterations, outer, n_t, z, root
             return status, iterations, outer, n_t, z, root
         if coupled:
             z = z_new

@@ -30,22 +30,22 @@ from __future__ import annotations
 
 import math
 
-from numba import njit
-
-from hipeq._jit import kernel
+from hipeq._jit import inline_kernel, kernel
 from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_MU, F_N, F_N_TRY, F_R, F_SCRATCH, F_Y, F_Y_TRY,
                                    FROZEN_PHI,
                                    IV_IDX, IV_PIV, J_JAC, J_JAC_TRY,
-                                   KV_RHS, KV_SOL, MAX_ITERATIONS, NO_PHYSICAL_STATE, S_B, S_EBAL, S_LAM, S_RHS,
-                                   S_SCALE, SINGULAR, SM_H, SM_L, WITH_JACOBIAN, WITH_PHI, cholesky_solve,
-                                   evaluate, lu_solve)
+                                   KV_RHS, KV_SOL, MAX_ITERATIONS, NO_PHYSICAL_STATE, S_B, S_EBAL, S_ESCALE,
+                                   S_LAM, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, WITH_JACOBIAN, WITH_PHI,
+                                   ELEMENT_ATOL, cholesky_solve, evaluate, lu_solve)
 
 LOG_STEP_MAJOR = 2.0  # largest change of ln n_i per iteration for species above TRACE in mole fraction
 TRACE = 1e-3
-ELEMENT_TOL = 1e-12  # relative element-balance residual at convergence (in the orthonormal element basis)
+ELEMENT_TOL = 1e-12  # element-balance residual at convergence, relative to each element's own feed amount
+POLISH_TOL = 1e-13  # after meeting the tolerance, Newton steps continue down to this (see gibbs_solve)
+MAX_POLISH = 3
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _fit_potentials(Q, neq, n, mu, active, S, SM):
     """Element potentials by weighted least squares: min sum_i n_i (mu_i - sum_e Q_ei lambda_e)^2."""
     nc = n.shape[0]
@@ -69,8 +69,8 @@ def _fit_potentials(Q, neq, n, mu, active, S, SM):
     return cholesky_solve(H, rhs, neq, S[S_LAM], SM[SM_L], S[S_SCALE])
 
 
-@njit(cache=True, inline='always')
-def _residuals(Q, neq, n, mu, active, r, S, bscale):
+@inline_kernel
+def _residuals(Q, neq, n, mu, active, r, S):
     nc = n.shape[0]
     lam = S[S_LAM]
     rmax = 0.0
@@ -89,12 +89,12 @@ def _residuals(Q, neq, n, mu, active, r, S, bscale):
         for i in range(nc):
             v += Q[e, i] * n[i]
         S[S_EBAL, e] = v
-        emax = max(emax, abs(v) / bscale)
+        emax = max(emax, abs(v) / S[S_ESCALE, e])
     return rmax, emax
 
 
-@njit(cache=True, inline='always')
-def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale):
+@inline_kernel
+def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV):
     """Assemble and solve the log-amount Newton system; returns (ok, number of active species)."""
     nc = n.shape[0]
     idx = IV[IV_IDX]
@@ -122,8 +122,8 @@ def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale):
     for e in range(neq):
         for c in range(m):
             j = idx[c]
-            M[m + e, c] = Q[e, j] * n[j] / bscale
-        rhs[m + e] = -S[S_EBAL, e] / bscale
+            M[m + e, c] = Q[e, j] * n[j] / S[S_ESCALE, e]
+        rhs[m + e] = -S[S_EBAL, e] / S[S_ESCALE, e]
     for c in range(m):
         M[size - 1, c] = n[idx[c]] / n_t
     M[size - 1, size - 1] = -1.0
@@ -131,7 +131,7 @@ def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale):
     return lu_solve(M, rhs, size, KV[KV_SOL], IV[IV_PIV]), m
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
     """True when G is locally convex along the feasible composition changes (columns of Nb, the null space of
     the element balances): Nb^T [diag(1/n) - 1 1^T / n_T + Phi / n_T] Nb positive definite, Phi_ij =
@@ -162,7 +162,7 @@ def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
     return cholesky_solve(H, rhs, n_null, x, L, scale)
 
 
-@njit(cache=True, inline='always')
+@inline_kernel
 def _update(neq, n, n_t, m, S, KV, IV):
     """Damped multiplicative update of the amounts and additive update of the element potentials."""
     idx = IV[IV_IDX]
@@ -198,19 +198,24 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                 F, J, S, SM, M, KV, IV):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
 
-    Q (neq rows used) is an orthonormal basis of the element balances on the active species, the first n_null
-    columns of Nb a basis of their null space. Returns
-    (status, iterations, outer_iterations, n_T, Z, root); rows F_N, F_Y, F_LNPHI, F_MU hold the last iterate.
+    The first neq rows of Q are independent rows of the element matrix restricted to the active species (one
+    element each, so that every balance is solved relative to its own feed amount b_e, with the floor
+    ELEMENT_ATOL sum_e b_e: a trace element keeps its balance); the first n_null columns of Nb a basis of their
+    null space. Once the tolerances are met, up to MAX_POLISH further Newton steps run while they still reduce
+    the residual by half, down to POLISH_TOL: the answer then no longer depends on where the iteration started.
+    Returns (status, iterations, outer_iterations, n_T, Z, root); rows F_N, F_Y, F_LNPHI, F_MU hold the last
+    iterate.
     """
     nc = n0.shape[0]
-    bscale = 0.0
-    for i in range(nc):
-        bscale += n0[i]
+    total = 0.0
     for e in range(neq):
         v = 0.0
         for i in range(nc):
             v += Q[e, i] * n0[i]
         S[S_B, e] = v
+        total += abs(v)
+    for e in range(neq):
+        S[S_ESCALE, e] = max(abs(S[S_B, e]), ELEMENT_ATOL * total, 1e-300)
     n = F[F_N]
     y = F[F_Y]
     ln_phi = F[F_LNPHI]
@@ -229,28 +234,36 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     inner_tol = 0.1 * tol
     iterations = 0
     outer = 0
+    polish = 0
+    last = 0.0
     inner = False  # nested scheme: inside the loop with ln phi frozen (the ideal-solution RAND iteration)
     while True:
-        rmax, emax = _residuals(Q, neq, n, mu, active, r, S, bscale)
+        rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
                                        jac, mu, jac, 0, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
-            rmax, emax = _residuals(Q, neq, n, mu, active, r, S, bscale)
+            rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
         if not inner:
             if rmax <= tol and emax <= ELEMENT_TOL:
-                return CONVERGED, iterations, outer, n_t, z, root
-            if iterations >= max_iter:
+                if (rmax <= POLISH_TOL and emax <= POLISH_TOL) or polish >= MAX_POLISH or (
+                        polish > 0 and max(rmax, emax) > 0.5 * last):
+                    return CONVERGED, iterations, outer, n_t, z, root
+                polish += 1
+                last = max(rmax, emax)
+            elif iterations >= max_iter:
                 return MAX_ITERATIONS, iterations, outer, n_t, z, root
             if not coupled:
                 outer += 1
                 inner = True
         use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, J[J_JAC_TRY], M, F[F_DN],
                                               F[F_Y_TRY], F[F_N_TRY])
-        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV, bscale)
+        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV)
         if not ok:
+            if polish > 0:  # the tolerances were met before the polish
+                return CONVERGED, iterations, outer, n_t, z, root
             return SINGULAR, iterations, outer, n_t, z, root
         _update(neq, n, n_t, m, S, KV, IV)
         iterations += 1

@@ -14,9 +14,10 @@ compositions; the LP is our formulation). The average of the LP solutions gives 
 
 Reactions with a species outside the support cannot proceed ("frozen"); the extent solver then works in the
 reduced extents t with xi = Zb t, the columns of Zb an orthonormal basis of the extent directions that keep
-every absent species at zero. Gibbs minimisation uses an orthonormal basis Q of the row space of the element
-matrix restricted to the support (so that the element rows are independent), and a basis of its null space (the
-feasible composition changes) for its convexity test.
+every absent species at zero. Gibbs minimisation uses independent rows of the element matrix restricted to the
+support (each row one element, so that every balance can be solved relative to its own feed amount, which keeps
+a trace element's balance), and an orthonormal basis of their null space (the feasible composition changes) for
+its convexity test.
 """
 from __future__ import annotations
 
@@ -40,21 +41,33 @@ class Pattern:
     ext_xdir: np.ndarray  # (nr,) extents reaching p from f
     frozen: np.ndarray  # (nr,) bool: reactions that cannot proceed
     gibbs_active: np.ndarray  # (nc,) bool
-    Q: np.ndarray  # (ne, nc), first neq rows used
+    Q: np.ndarray  # (ne, nc), first neq rows used: independent element rows on the active species
     neq: int
     gibbs_dir: np.ndarray  # (nc,) p - f for Gibbs minimisation
     gibbs_null: np.ndarray  # (nc, nc), first n_null columns: basis of the feasible composition changes
     n_null: int
 
 
-def null_space(matrix: np.ndarray, rtol: float = 1e-10) -> np.ndarray:
-    """Orthonormal basis of the null space of ``matrix`` (columns), by SVD."""
+def null_space(matrix: np.ndarray) -> np.ndarray:
+    """Orthonormal basis of the null space of ``matrix`` (columns): ``scipy.linalg.null_space`` (SVD) with a
+    relative singular-value cut of 1e-10; an empty matrix (no rows) gives the identity."""
+    from scipy.linalg import null_space as svd_null_space
+
     rows, cols = matrix.shape
     if rows == 0:
         return np.eye(cols)
-    _, sv, vt = np.linalg.svd(matrix)
-    rank = int(np.sum(sv > rtol * max(sv.max(initial=0.0), 1.0)))
-    return vt[rank:].T.copy()
+    return np.ascontiguousarray(svd_null_space(matrix, rcond=1e-10))
+
+
+def independent_rows(matrix: np.ndarray) -> list[int]:
+    """Indices of rows of ``matrix`` that are linearly independent, taken greedily in order (each kept row raises
+    the rank, relative cut 1e-10)."""
+    kept: list[int] = []
+    for k in range(matrix.shape[0]):
+        trial = matrix[kept + [k]]
+        if np.linalg.matrix_rank(trial, tol=1e-10 * max(1.0, float(np.abs(trial).max(initial=0.0)))) > len(kept):
+            kept.append(k)
+    return kept
 
 
 def _support(f: np.ndarray, span: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -110,11 +123,11 @@ def analyse(key: int, nc: int, nu: np.ndarray, element_null: np.ndarray, A: np.n
     ne = A.shape[0]
     Q = np.zeros((max(ne, 1), nc))
     sub = A[:, gibbs_active]
-    _, sv, vt = np.linalg.svd(sub, full_matrices=False)
-    neq = int(np.sum(sv > 1e-10 * max(sv.max(initial=0.0), 1.0)))
-    Q[:neq][:, gibbs_active] = vt[:neq]
+    rows = independent_rows(sub)
+    neq = len(rows)
+    Q[:neq][:, gibbs_active] = sub[rows]
     gibbs_dir = np.where(gibbs_active, pg - f, 0.0)
-    changes = null_space(vt[:neq]) if neq else np.eye(int(gibbs_active.sum()))
+    changes = null_space(sub[rows]) if neq else np.eye(int(gibbs_active.sum()))
     n_null = changes.shape[1]
     gibbs_null = np.zeros((nc, nc))
     gibbs_null[np.flatnonzero(gibbs_active)[:, None], np.arange(n_null)[None, :]] = changes

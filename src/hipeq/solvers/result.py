@@ -3,18 +3,24 @@
 Both are frozen, cheap to build (they keep the solver's arrays and derive the per-species mappings on first
 access) and serialisable (``to_dict()``, ``to_json()``). Standard state throughout: the ideal gas at 1 bar.
 
-Status codes (``status``; ``converged`` is ``status == 0``):
+Status codes (``status``, a :class:`Status`; ``converged`` is ``status == 0``):
 
 ====  =====================  =========================================================================
 code  name                   meaning
 ====  =====================  =========================================================================
-0     CONVERGED              every equilibrium condition (and element balance) met to the tolerance
+0     CONVERGED              every equilibrium condition met to the tolerance, every element balance
+                             closed (relative ELEMENT_RTOL with the absolute floor ELEMENT_ATOL of the
+                             total feed atoms), every output finite, the model inside its range
 1     MAX_ITERATIONS         the iteration limit was reached first
 2     STALLED                no step along the Newton direction lowered the Gibbs energy
 3     NO_PHYSICAL_STATE      the fugacity model has no physical state (e.g. truncated virial, high P)
-4     SINGULAR               the Newton system was singular or not finite
-5     PRESSURE_NOT_FOUND     sealed vessel: no pressure between 1e-2 and 1e10 Pa gives the volume
+4     SINGULAR               the Newton system was singular, or an output was not finite
+5     PRESSURE_NOT_FOUND     sealed vessel: no pressure between 1e-2 and 1e10 Pa gives the volume as one
+                             phase (the message says why: co-volume, a pressure limit, or no single phase)
 6     INVALID_INPUT          batch only: this state's input is out of range (see ``message(i)``)
+7     OUTSIDE_MODEL_RANGE    converged, but where the model does not apply (virial |Z - 1| > 0.5,
+                             Lewis-Randall rule above 2e8 Pa)
+8     BALANCE_NOT_CLOSED     an element balance did not close to its tolerance
 ====  =====================  =========================================================================
 
 Quantities per reaction (arrays in the order of ``reactions``): ``ln_K`` and ``K`` (standard state ideal gas
@@ -28,17 +34,39 @@ import json
 import math
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
+from enum import IntEnum
 from functools import cached_property
+from types import MappingProxyType
 from typing import Any
 
 import numpy as np
 
-__all__ = ["EquilibriumResult", "BatchResult", "SpeciesValues", "STATUS_NAMES", "STATUS_MESSAGES",
-           "STANDARD_STATE"]
+from hipeq.solvers import _common as C
+from hipeq.solvers._arrays import METHOD_NAMES
+
+__all__ = ["EquilibriumResult", "BatchResult", "SpeciesValues", "Status", "STATUS_NAMES", "STATUS_MESSAGES",
+           "REASON_TEXTS", "STANDARD_STATE", "ELEMENT_RTOL", "ELEMENT_ATOL"]
 
 STANDARD_STATE = "ideal gas at 1 bar"
-STATUS_NAMES = ("CONVERGED", "MAX_ITERATIONS", "STALLED", "NO_PHYSICAL_STATE", "SINGULAR", "PRESSURE_NOT_FOUND",
-                "INVALID_INPUT")
+ELEMENT_RTOL = C.ELEMENT_RTOL  # element balances at status 0: |sum_i a_ei n_i - b_e| <= ELEMENT_RTOL b_e ...
+ELEMENT_ATOL = C.ELEMENT_ATOL  # ... + ELEMENT_ATOL sum_e b_e (an absolute floor of the total feed atoms)
+
+
+class Status(IntEnum):
+    """Outcome of one state's solve (codes in the module docstring); compares equal to its integer code."""
+
+    CONVERGED = C.CONVERGED
+    MAX_ITERATIONS = C.MAX_ITERATIONS
+    STALLED = C.STALLED
+    NO_PHYSICAL_STATE = C.NO_PHYSICAL_STATE
+    SINGULAR = C.SINGULAR
+    PRESSURE_NOT_FOUND = C.PRESSURE_NOT_FOUND
+    INVALID_INPUT = C.INVALID_INPUT
+    OUTSIDE_MODEL_RANGE = C.OUTSIDE_MODEL_RANGE
+    BALANCE_NOT_CLOSED = C.BALANCE_NOT_CLOSED
+
+
+STATUS_NAMES = tuple(s.name for s in Status)
 STATUS_MESSAGES = (
     "converged",
     "did not converge: the iteration limit (max_iterations) was reached",
@@ -46,10 +74,28 @@ STATUS_MESSAGES = (
     "no physical state: the fugacity model has no root at this state (e.g. the truncated virial far beyond "
     "its pressure range); use a cubic model",
     "did not converge: the Newton system became singular or not finite",
-    "sealed vessel: no pressure between 1e-2 Pa and 1e10 Pa gives this volume (is it below the co-volume of "
-    "the mixture?)",
+    "sealed vessel: no pressure between 1e-2 Pa and 1e10 Pa gives this volume as one phase",
     "invalid input for this state",
+    "outside the model's range: the answer meets the equilibrium conditions, but the model does not apply there",
+    "an element balance did not close to its tolerance",
 )
+REASON_TEXTS = {
+    C.REASON_NONE: "",
+    C.REASON_BELOW_COVOLUME: "the volume is at or below the co-volume of the mixture (n_T b): no fluid of this "
+                             "model fits in it",
+    C.REASON_ABOVE_CEILING: "the pressure would exceed the ceiling of 1e10 Pa",
+    C.REASON_BELOW_FLOOR: "the pressure would fall below the floor of 1e-2 Pa (a very large vessel for this "
+                          "amount)",
+    C.REASON_NOT_ONE_PHASE: "the gas cannot fill the vessel at this density as one phase: the volume of the "
+                            "one-phase mixture jumps across the given volume (a liquid would form)",
+    C.REASON_VIRIAL_RANGE: "the truncated virial is used only while |Z - 1| <= 0.5",
+    C.REASON_LEWIS_RANDALL_RANGE: "the Lewis-Randall rule is used only up to 2e8 Pa",
+    C.REASON_NOT_FINITE: "an output was not finite",
+    C.REASON_ELEMENTS: f"an element balance is off by more than {ELEMENT_RTOL:g} of its feed amount (floor "
+                       f"{ELEMENT_ATOL:g} of the total feed atoms)",
+    C.REASON_LN_K: "the ln_K callable returned a value that is not finite at this temperature",
+}
+ROOT_NAMES = {-1: "none", 0: "single", 1: "gas-like", 2: "liquid-like"}
 
 
 class SpeciesValues(Mapping[str, Any]):
@@ -80,6 +126,9 @@ class SpeciesValues(Mapping[str, Any]):
         view.flags.writeable = False
         return view
 
+    def __reduce__(self) -> tuple[Any, ...]:
+        return SpeciesValues, (self._names, dict(self._index), self._array)
+
     def __repr__(self) -> str:
         if self._array.ndim == 1:
             return "{" + ", ".join(f"{n!r}: {float(v):.6g}" for n, v in zip(self._names, self._array)) + "}"
@@ -103,6 +152,24 @@ class _SystemInfo:
     data_sources: Mapping[str, Mapping[str, str]]
     notes: tuple[str, ...]
     k_source: str
+
+    def __reduce__(self) -> tuple[Any, ...]:  # mapping proxies do not pickle: send plain dicts, wrap them again
+        return _rebuild_info, ({k: _plain(v) for k, v in vars(self).items()},)
+
+
+def _plain(value: Any) -> Any:
+    if isinstance(value, Mapping):
+        return {k: _plain(v) for k, v in value.items()}
+    return value
+
+
+def _rebuild_info(fields: dict[str, Any]) -> _SystemInfo:
+    def proxy(value: Any) -> Any:
+        if isinstance(value, dict):
+            return MappingProxyType({k: proxy(v) for k, v in value.items()})
+        return value
+
+    return _SystemInfo(**{k: proxy(v) for k, v in fields.items()})
 
 
 def _ln_k_y(nu: np.ndarray, y: np.ndarray) -> np.ndarray:
@@ -242,18 +309,38 @@ class _Common:
 
     _PUBLIC = ("T", "P", "V", "Z", "species", "reactions", "amounts", "y", "phi", "conversion", "extents", "ln_K",
                "K", "K_phi", "K_y", "residuals", "element_residuals", "iterations", "outer_iterations", "converged",
-               "status", "method", "scheme", "liquid_like", "eos", "kij", "zero_kij_pairs", "kij_sources",
-               "K_source", "data_sources", "notes", "standard_state")
+               "status", "method", "method_requested", "scheme", "root", "liquid_like", "eos", "kij",
+               "zero_kij_pairs", "kij_sources", "K_source", "data_sources", "notes", "standard_state")
 
     def to_dict(self) -> dict[str, Any]:
-        """Every public field as plain Python values (lists for arrays, dicts for mappings)."""
+        """Every public field as plain Python values (lists for arrays, dicts for mappings), with the units of
+        the numbers under ``units``."""
         out = {name: _jsonable(getattr(self, name)) for name in self._PUBLIC}
         out["message"] = _jsonable(self.message if isinstance(self, EquilibriumResult) else self.messages)
+        out["units"] = dict(UNITS)
         return out
 
     def to_json(self, **kwargs: Any) -> str:
         """``to_dict()`` as JSON text (keyword arguments go to ``json.dumps``)."""
         return json.dumps(self.to_dict(), **kwargs)
+
+
+UNITS = MappingProxyType({"T": "K", "P": "Pa", "V": "m3", "amounts": "mol", "extents": "mol", "Z": "-", "y": "-",
+                          "phi": "-", "K": "- (pressures relative to 1 bar)"})
+
+
+def _status_text(status: int, reason: int, method: str, requested: str) -> str:
+    """The message of one state: what happened and why."""
+    text = STATUS_MESSAGES[status] if 0 <= status < len(STATUS_MESSAGES) else f"unknown status {status}"
+    why = REASON_TEXTS.get(reason, "")
+    if why:
+        text += ": " + why
+    if method != requested and status == Status.CONVERGED:
+        text += (f"; answered by method '{method}' (Gibbs minimisation) after the '{requested}' method stopped "
+                 "without converging")
+    elif method != requested:
+        text += f"; method '{method}' (Gibbs minimisation) was also tried after the '{requested}' method stopped"
+    return text
 
 
 @dataclass(frozen=True, eq=False, repr=False)
@@ -263,17 +350,21 @@ class EquilibriumResult(_Common):
 
     T [K], P [Pa] (given, or found for a sealed vessel), V [m3] (total volume of the equilibrium mixture),
     Z [-]; amounts [mol], y [-], phi [-], conversion [-]; extents [mol]; ln_K, K, K_phi, K_y [-]; residuals
-    [-] of the equilibrium conditions; element_residuals [-]; iterations (Newton steps), outer_iterations
-    (fugacity-coefficient updates of the nested scheme, or pressure steps of a sealed vessel); converged,
-    status (see module docstring), message; method, scheme; liquid_like (the equation of state chose a
-    liquid-like root: the gas-phase assumption is doubtful); provenance (eos, kij, kij_sources, zero_kij_pairs,
-    data_sources, K_source, notes, standard_state).
+    [-] of the equilibrium conditions; element_residuals [-]; G_RT [mol] (G/RT of the mixture, standard state
+    ideal gas at 1 bar); iterations (Newton steps, over every start tried), outer_iterations (fugacity-coefficient
+    updates of the nested scheme, or pressure steps of a sealed vessel); converged, status (a :class:`Status`),
+    reason (code refining the status), message; method (the method that answered: the requested one, or "gibbs"
+    when the extent method failed and Gibbs minimisation answered), method_requested, scheme; root ("single",
+    "gas-like", "liquid-like" or "none": the volume root of the equation of state at the answer), liquid_like
+    (a liquid-like root or v/b < 1.75: the one-gas assumption is doubtful); provenance (eos, kij, kij_sources,
+    zero_kij_pairs, data_sources, K_source, notes, standard_state).
     """
 
     T: float
     P: float
     V: float
     Z: float
+    G_RT: float
     _amounts: np.ndarray
     _feed: np.ndarray
     _ln_phis: np.ndarray
@@ -283,9 +374,12 @@ class EquilibriumResult(_Common):
     _element_res: np.ndarray
     iterations: int
     outer_iterations: int
-    status: int
+    status: Status
+    reason: int
     method: str
+    method_requested: str
     scheme: str
+    root: str
     liquid_like: bool
     fixed_volume: bool
     frozen_reactions: tuple[str, ...]
@@ -293,13 +387,13 @@ class EquilibriumResult(_Common):
 
     @property
     def converged(self) -> bool:
-        """True when status == 0 (every condition met to the tolerance)."""
+        """True when status == 0 (see :class:`Status`)."""
         return self.status == 0
 
     @cached_property
     def message(self) -> str:
-        """What happened, and for a failed solve where it stopped."""
-        text = STATUS_MESSAGES[self.status]
+        """What happened, and for a failed solve why and where it stopped."""
+        text = _status_text(self.status, self.reason, self.method, self.method_requested)
         worst = float(np.max(np.abs(self.residuals))) if self.residuals.size else 0.0
         if self.status == 0:
             text += f" in {self.iterations} Newton iterations; largest equilibrium residual {worst:.1e}"
@@ -308,19 +402,19 @@ class EquilibriumResult(_Common):
             if self.residuals.size:
                 k = int(np.argmax(np.abs(self.residuals)))
                 where = f" in '{self.reactions[k]}'"
-            text += (f"; stopped after {self.iterations} Newton iterations at P = {self.P:.6g} Pa with the largest "
-                     f"equilibrium residual {worst:.2e}{where}")
+            text += (f"; stopped after {self.iterations} Newton iterations at T = {self.T:.6g} K, "
+                     f"P = {self.P:.6g} Pa with the largest equilibrium residual {worst:.2e}{where}")
         if self.frozen_reactions:
             text += ("; cannot proceed (a species on each side is absent and cannot form): "
                      + "; ".join(self.frozen_reactions))
         if self.liquid_like:
-            text += "; caution: the equation of state chose a liquid-like root (gas-phase assumption doubtful)"
+            text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
         return text
 
     def __repr__(self) -> str:
         ys = ", ".join(f"{n}={v:.4g}" for n, v in self.y.items())
         return (f"EquilibriumResult(T={self.T:g} K, P={self.P:.6g} Pa, {self.eos}, {self.method}/{self.scheme}, "
-                f"status={self.status} ({STATUS_NAMES[self.status]}), y: {ys})")
+                f"status={int(self.status)} ({self.status.name}), y: {ys})")
 
 
 @dataclass(frozen=True, eq=False, repr=False)
@@ -328,13 +422,15 @@ class BatchResult(_Common):
     """Equilibrium of many states: every field is an array over the states (shape ``shape``); per-species
     mappings give arrays; per-reaction arrays have the reactions along the last axis. A state that failed has
     ``converged`` False and a ``status`` code; its values are the last iterate (finite, never NaN). Invalid
-    input states (status 6) hold the feed. ``message(i)`` explains state i (flat index); ``messages`` all."""
+    input states (status 6) hold the feed. ``message(i)`` explains state i (flat index); ``messages`` all.
+    ``method`` and ``root`` are arrays of names per state (see :class:`EquilibriumResult`)."""
 
     shape: tuple[int, ...]
     T: np.ndarray
     P: np.ndarray
     V: np.ndarray
     Z: np.ndarray
+    G_RT: np.ndarray
     _amounts: np.ndarray
     _feed: np.ndarray
     _ln_phis: np.ndarray
@@ -345,8 +441,11 @@ class BatchResult(_Common):
     iterations: np.ndarray
     outer_iterations: np.ndarray
     status: np.ndarray
-    method: str
+    reason: np.ndarray
+    _methods: np.ndarray
+    method_requested: str
     scheme: str
+    _roots: np.ndarray
     liquid_like: np.ndarray
     fixed_volume: bool
     _invalid_reasons: Mapping[int, str]
@@ -367,6 +466,18 @@ class BatchResult(_Common):
         out.flags.writeable = False
         return out
 
+    @cached_property
+    def method(self) -> np.ndarray:
+        """Name of the method that answered, per state."""
+        return np.array(METHOD_NAMES)[self._methods]
+
+    @cached_property
+    def root(self) -> np.ndarray:
+        """Volume root of the equation of state at the answer, per state ("single", "gas-like", "liquid-like",
+        "none")."""
+        names = np.array(["none", "single", "gas-like", "liquid-like"])
+        return names[np.clip(self._roots, -1, 2) + 1]
+
     @property
     def n_failed(self) -> int:
         """Number of states that did not converge (including invalid input)."""
@@ -376,14 +487,18 @@ class BatchResult(_Common):
         """Explanation of the state at ``index`` (flat index or multi-index)."""
         flat = int(np.ravel_multi_index(index, self.shape)) if isinstance(index, tuple) else int(index)
         status = int(self.status.flat[flat])
-        if status == 6:
-            return STATUS_MESSAGES[6] + ": " + self._invalid_reasons.get(flat, "out of range")
-        text = STATUS_MESSAGES[status]
+        if status == Status.INVALID_INPUT:
+            return STATUS_MESSAGES[status] + ": " + self._invalid_reasons.get(flat, "out of range")
+        text = _status_text(status, int(self.reason.flat[flat]), METHOD_NAMES[int(self._methods.flat[flat])],
+                            self.method_requested)
         if status != 0:
             res = self.residuals.reshape(-1, self.residuals.shape[-1])[flat] if self.residuals.size else []
             worst = float(np.max(np.abs(res))) if len(res) else 0.0
             text += (f"; stopped after {int(self.iterations.flat[flat])} Newton iterations at "
-                     f"P = {float(self.P.flat[flat]):.6g} Pa with the largest equilibrium residual {worst:.2e}")
+                     f"T = {float(self.T.flat[flat]):.6g} K, P = {float(self.P.flat[flat]):.6g} Pa with the "
+                     f"largest equilibrium residual {worst:.2e}")
+        if bool(self.liquid_like.flat[flat]):
+            text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
         return text
 
     @property
@@ -392,5 +507,51 @@ class BatchResult(_Common):
         return [self.message(i) for i in range(len(self))]
 
     def __repr__(self) -> str:
-        return (f"BatchResult({len(self)} states, shape={self.shape}, {self.eos}, {self.method}/{self.scheme}, "
-                f"{len(self) - self.n_failed} converged, {self.n_failed} failed)")
+        return (f"BatchResult({len(self)} states, shape={self.shape}, {self.eos}, {self.method_requested}/"
+                f"{self.scheme}, {len(self) - self.n_failed} converged, {self.n_failed} failed)")
+
+
+def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndarray, T: float, n0: np.ndarray,
+                  method_requested: str, scheme: str, fixed_volume: bool,
+                  frozen: tuple[str, ...]) -> EquilibriumResult:
+    """An :class:`EquilibriumResult` from one state's packed answer rows (``hipeq.solvers._arrays``)."""
+    from hipeq.solvers import _arrays as A
+
+    nc, nr, ne = len(info.species), len(info.reactions), len(info.elements)
+    for arr in (row, ints, n0):
+        arr.flags.writeable = False
+    root = int(ints[A.ROOT])
+    return EquilibriumResult(
+        T, float(row[layout.P]), float(row[layout.V]), float(row[layout.Z]), float(row[layout.G]),
+        row[layout.amounts:layout.amounts + nc], n0, row[layout.ln_phis:layout.ln_phis + nc],
+        row[layout.extents:layout.extents + nr], row[layout.ln_k:layout.ln_k + nr],
+        row[layout.residuals:layout.residuals + nr], row[layout.element_residuals:layout.element_residuals + ne],
+        int(ints[A.ITERATIONS]), int(ints[A.OUTER]), Status(int(ints[A.STATUS])), int(ints[A.REASON]),
+        METHOD_NAMES[int(ints[A.METHOD])], method_requested, scheme, ROOT_NAMES.get(root, "none"),
+        bool(ints[A.LIQUID]), fixed_volume, frozen, info)
+
+
+def batch_result(info: _SystemInfo, layout: Any, rows: np.ndarray, ints: np.ndarray, shape: tuple[int, ...],
+                 T: np.ndarray, N0: np.ndarray, method_requested: str, scheme: str, fixed_volume: bool,
+                 invalid_reasons: Mapping[int, str]) -> BatchResult:
+    """A :class:`BatchResult` over ``shape`` from packed answer rows, one per state (views, no copies)."""
+    from hipeq.solvers import _arrays as A
+
+    nc, nr, ne = len(info.species), len(info.reactions), len(info.elements)
+
+    def columns(first: int, count: int) -> np.ndarray:
+        return rows[:, first:first + count].reshape(shape + (count,))
+
+    def column(j: int) -> np.ndarray:
+        return rows[:, j].reshape(shape)
+
+    def integers(j: int) -> np.ndarray:
+        return ints[:, j].reshape(shape)
+
+    return BatchResult(
+        shape, T.reshape(shape), column(layout.P), column(layout.V), column(layout.Z), column(layout.G),
+        columns(layout.amounts, nc), N0.reshape(shape + (nc,)), columns(layout.ln_phis, nc),
+        columns(layout.extents, nr), columns(layout.ln_k, nr), columns(layout.residuals, nr),
+        columns(layout.element_residuals, ne), integers(A.ITERATIONS), integers(A.OUTER), integers(A.STATUS),
+        integers(A.REASON), integers(A.METHOD), method_requested, scheme, integers(A.ROOT),
+        integers(A.LIQUID).astype(bool), fixed_volume, invalid_reasons, info)

@@ -34,14 +34,17 @@ from hipeq.data.reactions import stoichiometric_matrix
 from hipeq.data.species import Species
 from hipeq.data.species import species as lookup_species
 from hipeq.errors import InputError, NotConvergedError, UnknownSpeciesError
+from hipeq.models.inputs import P_MAX
+from hipeq.solvers import _arrays as A
 from hipeq.solvers import _driver as D
-from hipeq.solvers._patterns import Pattern, analyse, null_space
+from hipeq.solvers._patterns import Pattern, null_space
+from hipeq.solvers._store import CompiledSystem, PatternStore
 from hipeq.solvers._tables import g0_table
-from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo
+from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo, scalar_result
+from hipeq.units import to_si
 
 __all__ = ["ReactionSystem"]
 
-P_MAX = D.P_MAX  # [Pa] upper limit of P (the same sanity limit as the fugacity models)
 METHODS = ("extent", "gibbs")
 SCHEMES = ("coupled", "nested")
 DEFAULT_TOL = 1e-11
@@ -78,6 +81,9 @@ class ReactionSystem:
                  pure_eos: str | None = None, ln_K: Callable[[np.ndarray], Any] | None = None) -> None:
         from hipeq.models import build_model
 
+        self._model_options = {"eos": eos, "kij": kij, "quantum_hydrogen": quantum_hydrogen,
+                               "hydrogen_omega": hydrogen_omega, "volume_translation": volume_translation,
+                               "pure_eos": pure_eos}
         if isinstance(species, (str, Species)) or not isinstance(species, Sequence) or not species:
             raise InputError("species", f"must be a non-empty list of species names, got {species!r}")
         records = tuple(lookup_species(s) for s in species)
@@ -112,13 +118,13 @@ class ReactionSystem:
         self._nu_pinv = np.ascontiguousarray(np.linalg.pinv(self.nu)) if nr else np.zeros((nc, 0))
         self._max_nu = float(np.max(np.sum(np.abs(self.nu), axis=1))) if nr else 1.0
         m = self.model
-        self._static = (int(m.code), np.array(m.comp), np.array(m.consts), np.array(m.kmat), self.table.u_lo,
-                        self.table.h, np.array(self.table.values), np.ascontiguousarray(self.nu), self._nu_pinv,
-                        np.ascontiguousarray(self.element_matrix))
-        self._patterns: list[Pattern] = []
-        self._pattern_ids: dict[int, int] = {}
-        self._stacked: tuple[np.ndarray, ...] = ()
-        self._options: dict[tuple, tuple[np.ndarray, np.ndarray]] = {}
+        arrays = A.SystemArrays(
+            model_code=int(m.code), components=np.array(m.comp), model_constants=np.array(m.consts),
+            kij=np.array(m.kmat), g0_ln_t0=float(self.table.u_lo), g0_step=float(self.table.h),
+            g0_nodes=np.array(self.table.values), nu=np.ascontiguousarray(self.nu), nu_pinv=self._nu_pinv,
+            elements=np.ascontiguousarray(self.element_matrix), complete=bool(rank == self._element_null.shape[1]))
+        self.compiled = CompiledSystem(arrays, PatternStore(arrays.nu, self._element_null, arrays.elements))
+        self._options: dict[tuple, A.Options] = {}
         self._frozen_cache: dict[tuple[int, str], tuple[str, ...]] = {}
         self._bits = np.array([1 << k for k in range(nc)], dtype=np.int64)
         self.notes = tuple(notes)
@@ -160,35 +166,18 @@ class ReactionSystem:
             notes.append(f"dropped dependent reaction '{parsed[d]}' = {combo}")
         return kept, tuple(dropped)
 
-    def _pattern(self, key: int) -> int:
-        pid = self._pattern_ids.get(key)
-        if pid is None:
-            pattern = analyse(key, len(self.species_names), self.nu, self._element_null, self.element_matrix)
-            pid = len(self._patterns)
-            self._patterns.append(pattern)
-            self._pattern_ids[key] = pid
-            ps = self._patterns
-            self._stacked = (np.array([p.ext_active for p in ps]), np.array([p.Zb for p in ps]),
-                             np.array([p.W for p in ps]), np.array([p.neff for p in ps], dtype=np.int64),
-                             np.array([p.ext_dir for p in ps]), np.array([p.ext_xdir for p in ps]),
-                             np.array([p.gibbs_active for p in ps]), np.array([p.Q for p in ps]),
-                             np.array([p.neq for p in ps], dtype=np.int64), np.array([p.gibbs_dir for p in ps]),
-                             np.array([p.gibbs_null for p in ps]), np.array([p.n_null for p in ps], dtype=np.int64))
-        return pid
-
-    def _frozen(self, pat: int, method: str) -> tuple[str, ...]:
-        """Reactions that cannot proceed for pattern ``pat`` (a species absent and not formable), as text."""
-        key = (pat, method)
+    def _frozen(self, pattern: Pattern, method: str) -> tuple[str, ...]:
+        """Reactions that cannot proceed for ``pattern`` (a species absent and not formable), as text."""
+        key = (pattern.key, method)
         found = self._frozen_cache.get(key)
         if found is None:
-            p = self._patterns[pat]
-            active = p.ext_active if method == "extent" else p.gibbs_active
+            active = pattern.ext_active if method == "extent" else pattern.gibbs_active
             found = tuple(str(r) for r, row in zip(self.reactions, self.nu) if np.any(row[~active] != 0.0))
-            self._frozen_cache[key] = found
+            self._frozen_cache[key] = found  # idempotent: a race only computes it twice
         return found
 
     def _opts(self, method: str, scheme: str, tol: float, max_iterations: int, fixed_volume: bool,
-              guess: bool) -> tuple[np.ndarray, np.ndarray]:
+              guess: bool) -> A.Options:
         key = (method, scheme, tol, max_iterations, fixed_volume, guess)
         found = self._options.get(key)
         if found is not None:
@@ -197,25 +186,23 @@ class ReactionSystem:
             raise InputError("method", f"must be one of {', '.join(map(repr, METHODS))}, got {method!r}")
         if scheme not in SCHEMES:
             raise InputError("scheme", f"must be one of {', '.join(map(repr, SCHEMES))}, got {scheme!r}")
-        if not (isinstance(tol, (int, float)) and 1e-14 <= tol <= 1e-3):
+        if isinstance(tol, bool) or not (isinstance(tol, (int, float)) and 1e-14 <= tol <= 1e-3):
             raise InputError("tol", f"must be a number in [1e-14, 1e-3], got {tol!r}")
         if isinstance(max_iterations, bool) or not isinstance(max_iterations, (int, np.integer)) or not (
                 1 <= max_iterations <= 100_000):
             raise InputError("max_iterations", f"must be an integer in [1, 100000], got {max_iterations!r}")
-        opts_i = np.zeros(D.N_OPT_I, dtype=np.int64)
-        opts_i[D.OPT_METHOD] = D.METHOD_EXTENT if method == "extent" else D.METHOD_GIBBS
-        opts_i[D.OPT_COUPLED] = scheme == "coupled"
-        opts_i[D.OPT_FIXED_VOLUME] = fixed_volume
-        opts_i[D.OPT_MAX_ITER] = max_iterations
-        opts_i[D.OPT_USER_LNK] = self._ln_K is not None
-        opts_i[D.OPT_WARM] = 1
-        opts_i[D.OPT_GUESS] = guess
-        opts_f = np.array([tol, tol / max(1.0, self._max_nu), VOLUME_TOL])
-        self._options[key] = (opts_i, opts_f)
-        return opts_i, opts_f
+        options = A.Options(method=A.METHOD_EXTENT if method == "extent" else A.METHOD_GIBBS,
+                            coupled=scheme == "coupled", fixed_volume=bool(fixed_volume),
+                            max_iterations=int(max_iterations), user_ln_k=self._ln_K is not None, warm=True,
+                            guess=bool(guess), tol=float(tol), tol_gibbs=float(tol) / max(1.0, self._max_nu),
+                            tol_volume=VOLUME_TOL)
+        self._options[key] = options
+        return options
 
     # ------------------------------------------------------------------------------------------------------
-    def _feed_index(self, name: Any) -> int:
+    def species_index(self, name: Any) -> int:
+        """Position of species ``name`` (identifier, common name, formula or CAS number) in ``species_names``;
+        InputError naming the feed field when it is unknown or not in this system."""
         j = self._index.get(name)
         if j is not None:
             return j
@@ -251,66 +238,78 @@ class ReactionSystem:
 
         Args:
             feed: amounts [mol] per species, {name: amount}; or an array with species along the last axis in
-                the order of ``species_names``. Values may be arrays (a batch).
-            T: temperature [K], within the species' heat-capacity range (``T_min``-``T_max``).
-            P: pressure [Pa], 0 < P <= 1e10 (fixed pressure). Exactly one of P and V.
-            V: total volume [m3], > 0 (sealed vessel: the pressure follows from the equation of state).
+                the order of ``species_names``. Values may be arrays (a batch) or strings with a unit
+                (``"3 kmol"``).
+            T: temperature [K], within the species' heat-capacity range (``T_min``-``T_max``); or a string with
+                a unit (``"450 degC"``).
+            P: pressure [Pa], 0 < P <= 1e10 (fixed pressure), or a string with a unit (``"300 bar"``). Exactly
+                one of P and V.
+            V: total volume [m3], > 0 (sealed vessel: the pressure follows from the equation of state), or a
+                string with a unit (``"2.5 L"``).
             method: "extent" (Newton on the extents) or "gibbs" (Gibbs minimisation with element balances).
+                When the extent method fails and the reactions span every composition change the element
+                balances allow, Gibbs minimisation answers instead (``result.method`` says which answered).
             scheme: "coupled" (full Newton with d ln phi/d n) or "nested" (phi frozen in an inner loop).
             tol: tolerance on every equilibrium condition, |sum_i nu_ki mu_i/RT| <= tol [-].
-            max_iterations: Newton iterations allowed (per pressure step in a sealed vessel).
+            max_iterations: Newton iterations allowed (per start, and per pressure step in a sealed vessel).
             initial_guess: amounts {name: mol} or a previous EquilibriumResult to start from (scalar calls).
             raise_on_failure: raise NotConvergedError (with ``.result``) instead of returning a result with
-                ``converged == False``. Default False: check ``result.converged``. Scalar calls only; a batch
-                never raises for one bad state (it reports a status per state).
+                ``converged == False`` (for a batch: when any state failed). Default False: check
+                ``result.converged``.
 
         The conditions solved are sum_i nu_ki [g0_i + ln(P/P0) + ln y_i + ln phi_i] = 0 for every independent
-        reaction k (extent) or the equivalent element-potential conditions (gibbs), P0 = 1 bar.
+        reaction k (extent) or the equivalent element-potential conditions (gibbs), P0 = 1 bar (Smith & Missen
+        1982, ch. 4, 6 and 7). Where the equation of state could have several volume roots (a species below
+        its critical temperature), the state is solved from a deterministic set of starts and the lowest-Gibbs
+        answer is kept, so that a state's answer does not depend on the rest of a batch.
 
-        Returns an :class:`EquilibriumResult` when T, P (or V) and every feed amount are scalars, else a
-        :class:`BatchResult` over their broadcast shape (also see :meth:`equilibrium_batch`).
+        Returns an :class:`EquilibriumResult` when T, P (or V) and every feed amount are scalars (Python or
+        numpy numbers, or unit strings), else a :class:`BatchResult` over their broadcast shape.
         """
         value, fixed_volume = self._check_PV(P, V)
-        scalar = isinstance(T, (int, float)) and isinstance(value, (int, float))
-        if scalar and (type(feed) is dict or isinstance(feed, Mapping)):
-            scalar = all(isinstance(v, (int, float)) for v in feed.values())
+        T_si = to_si(T, "temperature", "T")
+        value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
+        scalar = type(T_si) is float and type(value_si) is float
+        if scalar and isinstance(feed, Mapping):
+            feed = {name: to_si(amount, "amount", f"feed[{name!r}]") for name, amount in feed.items()}
+            scalar = all(type(v) is float for v in feed.values())
         elif scalar:
             scalar = np.ndim(feed) == 1
         if not scalar:
             if initial_guess is not None:
                 raise InputError("initial_guess", "is for scalar calls; a batch warm-starts each state from its "
                                                   "neighbour")
-            return self.equilibrium_batch(feed, T, P, V, method=method, scheme=scheme, tol=tol,
-                                          max_iterations=max_iterations)
-        return self._solve_scalar(feed, float(T), float(value), fixed_volume, method, scheme, tol, max_iterations,
+            batch = self.equilibrium_batch(feed, T_si, value_si if not fixed_volume else None,
+                                           value_si if fixed_volume else None, method=method, scheme=scheme,
+                                           tol=tol, max_iterations=max_iterations)
+            if raise_on_failure and batch.n_failed:
+                first = int(np.flatnonzero(batch.status.ravel() != 0)[0])
+                raise NotConvergedError(f"{batch.n_failed} of {len(batch)} states did not converge; the first, state "
+                                        f"{first}: {batch.message(first)}", batch)
+            return batch
+        return self._solve_scalar(feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations,
                                   initial_guess, raise_on_failure)
 
     def _feed_vector(self, feed: Any) -> tuple[np.ndarray, int]:
         nc = len(self.species_names)
         n0 = np.zeros(nc)
         key = 0
-        if type(feed) is dict or isinstance(feed, Mapping):
+        if isinstance(feed, Mapping):
             if not feed:
                 raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
             for name, amount in feed.items():
-                j = self._feed_index(name)
-                try:
-                    v = float(amount)
-                except (TypeError, ValueError):
-                    raise InputError("feed", f"amount of {name!r} must be a number [mol], got {amount!r}") from None
+                j = self.species_index(name)
+                v = float(amount)  # already a float (see equilibrium)
                 if not (v >= 0.0 and math.isfinite(v)):
                     raise InputError("feed", f"amount of {name!r} must be finite and >= 0 mol, got {amount!r}")
                 n0[j] += v
         else:
-            try:
-                arr = np.asarray(feed, dtype=float)
-            except (TypeError, ValueError):
-                raise InputError("feed", f"must map species to amounts [mol], got {feed!r}") from None
-            if arr.shape != (nc,):
+            arr = to_si(feed, "amount", "feed")
+            if np.shape(arr) != (nc,):
                 raise InputError("feed", f"an array feed needs shape ({nc},) in the order {list(self.species_names)}"
-                                         f", got shape {arr.shape}")
+                                         f", got shape {np.shape(arr)}")
             if not (np.all(np.isfinite(arr)) and np.all(arr >= 0.0)):
-                raise InputError("feed", f"amounts must be finite and >= 0 mol, got {arr.tolist()}")
+                raise InputError("feed", f"amounts must be finite and >= 0 mol, got {np.asarray(arr).tolist()}")
             n0[:] = arr
         for j in range(nc):
             if n0[j] > 0.0:
@@ -320,6 +319,8 @@ class ReactionSystem:
         return n0, key
 
     def _user_ln_k(self, T: np.ndarray) -> np.ndarray:
+        """ln K of the user's callable at T (1-D); rows that are not finite are left as NaN for the caller to mark
+        (a batch marks those states invalid, naming T; a scalar call raises)."""
         nr = len(self.reactions)
         try:
             values = np.asarray(self._ln_K(T), dtype=float)
@@ -332,8 +333,6 @@ class ReactionSystem:
         if values.shape != (T.size, nr):
             raise InputError("ln_K", f"must return shape (n_T, {nr}) for T of shape ({T.size},), "
                                      f"got {values.shape}")
-        if not np.all(np.isfinite(values)):
-            raise InputError("ln_K", "returned non-finite values")
         return np.ascontiguousarray(values)
 
     def _solve_scalar(self, feed: Any, T: float, value: float, fixed_volume: bool, method: str, scheme: str,
@@ -346,29 +345,24 @@ class ReactionSystem:
         elif not (0.0 < value <= P_MAX):
             raise InputError("P", f"must be finite, > 0 Pa and <= {P_MAX:g} Pa, got {value!r}")
         n0, key = self._feed_vector(feed)
-        pat = self._pattern(key)
+        patterns, (pat,), known = self.compiled.patterns_for((key,))
         guess = self._guess(initial_guess, n0, method)
-        opts_i, opts_f = self._opts(method, scheme, tol, max_iterations, fixed_volume, guess is not None)
-        nc, nr = n0.size, len(self.reactions)
-        ne = len(self.elements)
-        ln_k_user = self._user_ln_k(np.array([T]))[0] if self._ln_K is not None else _EMPTY
-        buf = np.empty(2 * nc + 3 * nr + ne + 3)
-        species_out = buf[:2 * nc].reshape(2, nc)
-        reactions_out = buf[2 * nc:2 * nc + 3 * nr].reshape(3, nr)
-        eres = buf[2 * nc + 3 * nr:2 * nc + 3 * nr + ne]
-        scalars = buf[2 * nc + 3 * nr + ne:]
-        status, iters, outer, root, liquid = D.solve_one(
-            *self._static, *self._stacked, T, value, n0, pat, ln_k_user, _EMPTY if guess is None else guess,
-            opts_i, opts_f, species_out, reactions_out, eres, scalars)
-        for arr in (species_out, reactions_out, eres, n0):
-            arr.flags.writeable = False
-        amounts, ln_phis = species_out
-        extents, ln_k, residuals = reactions_out
-        frozen = self._frozen(pat, method)
-        result = EquilibriumResult(T, float(scalars[0]), float(scalars[1]), float(scalars[2]), amounts, n0,
-                                   ln_phis, extents, ln_k, residuals, eres, int(iters), int(outer), int(status),
-                                   method, scheme, bool(liquid), fixed_volume, frozen, self._info)
-        if status != 0 and raise_on_failure:
+        options = self._opts(method, scheme, tol, max_iterations, fixed_volume, guess is not None)
+        nc, nr, ne = n0.size, len(self.reactions), len(self.elements)
+        ln_k_user = _EMPTY
+        if self._ln_K is not None:
+            ln_k_user = self._user_ln_k(np.array([T]))[0]
+            if not np.all(np.isfinite(ln_k_user)):
+                raise InputError("ln_K", f"the ln_K callable returned {ln_k_user.tolist()} at T = {T!r} K: every "
+                                         "value must be finite")
+        layout = A.answer_layout(nc, nr, ne)
+        row = np.empty(layout.width)
+        ints = np.empty(A.INT_COLUMNS, dtype=np.int64)
+        D.solve_one(self.compiled.arrays, patterns, T, value, n0, pat, ln_k_user,
+                    _EMPTY if guess is None else guess, options, row, ints)
+        result = scalar_result(self._info, layout, row, ints, T, n0, method, scheme, fixed_volume,
+                               self._frozen(known[pat], method))
+        if result.status != 0 and raise_on_failure:
             raise NotConvergedError(result.message, result)
         return result
 
@@ -382,7 +376,7 @@ class ReactionSystem:
         elif isinstance(initial_guess, Mapping):
             amounts = np.zeros(len(self.species_names))
             for name, v in initial_guess.items():
-                amounts[self._feed_index(name)] = float(v)
+                amounts[self.species_index(name)] = float(to_si(v, "amount", f"initial_guess[{name!r}]"))
         else:
             raise InputError("initial_guess", f"must map species to amounts [mol] or be an EquilibriumResult, "
                                               f"got {initial_guess!r}")
@@ -399,14 +393,49 @@ class ReactionSystem:
         """Equilibrium of many states at once in the compiled core; always returns a :class:`BatchResult`.
 
         T [K], P [Pa] or V [m3] and the feed amounts [mol] (a mapping of scalars or arrays, or an array with
-        species along the last axis) are broadcast together. Badly shaped input raises InputError; a state with
-        out-of-range values gets status 6 (INVALID_INPUT) instead, and a state that fails to converge its own
-        status: a batch never raises for one bad state. Other arguments as in :meth:`equilibrium`.
+        species along the last axis; numbers or unit strings) are broadcast together. Badly shaped input raises
+        InputError; a state with out-of-range values gets status 6 (INVALID_INPUT) instead, and a state that
+        fails to converge its own status: a batch never raises for one bad state. Every state gets the answer
+        it would get alone (see :meth:`equilibrium`). Other arguments as in :meth:`equilibrium`.
         """
         from hipeq.solvers._batch import solve_batch
 
         value, fixed_volume = self._check_PV(P, V)
-        return solve_batch(self, feed, T, value, fixed_volume, method, scheme, tol, max_iterations)
+        T_si = to_si(T, "temperature", "T")
+        value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
+        return solve_batch(self, feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations)
+
+    # ------------------------------------------------------------------------------------------------------
+    def with_model(self, **model_options: Any) -> ReactionSystem:
+        """The same species, reactions, ln K and feed patterns with another fugacity model: keyword arguments of
+        the constructor's model options (``eos``, ``kij``, ``quantum_hydrogen``, ``hydrogen_omega``,
+        ``volume_translation``, ``pure_eos``); options not given keep their values, except ``kij``, which returns
+        to the new model's default when ``eos`` changes and ``kij`` is not given. E.g.
+        ``system.with_model(eos="ideal")`` for the ideal-gas estimate of the same system."""
+        unknown = sorted(set(model_options) - set(self._model_options))
+        if unknown:
+            raise InputError("with_model", f"unknown model option(s) {', '.join(unknown)}; allowed: "
+                                           f"{', '.join(self._model_options)}")
+        options = dict(self._model_options)
+        if "eos" in model_options and "kij" not in model_options:
+            options["kij"] = None
+        options.update(model_options)
+        other = ReactionSystem(self.records, list(self.reactions), ln_K=self._ln_K, **options)
+        other.compiled.store = self.compiled.store  # patterns do not depend on the model: share them
+        return other
+
+    def __reduce__(self) -> tuple[Any, ...]:
+        return _rebuild_system, (self.records, tuple(self.reactions), self._model_options, self._ln_K,
+                                 self.compiled.store)
+
+
+def _rebuild_system(records: tuple[Species, ...], reactions: tuple[Reaction, ...], model_options: dict[str, Any],
+                    ln_K: Any, store: PatternStore) -> ReactionSystem:
+    """Unpickle a :class:`ReactionSystem`: rebuilt from its species records, reactions and model options, with
+    the feed patterns it had already analysed."""
+    system = ReactionSystem(list(records), list(reactions), ln_K=ln_K, **model_options)
+    system.compiled.store = store
+    return system
 
 
 _EMPTY = np.zeros(0)

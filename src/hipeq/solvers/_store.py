@@ -1,0 +1,106 @@
+"""The frozen compiled form of a reaction system: fixed arrays plus a thread-safe store of feed patterns.
+
+:class:`CompiledSystem` is what the scalar and batch paths of :class:`~hipeq.solvers.system.ReactionSystem` hand
+to the compiled core. Its :class:`~hipeq.solvers._arrays.SystemArrays` never change. Feed patterns (which
+species are fed, see :mod:`hipeq.solvers._patterns`) are analysed on first sight and kept in a
+:class:`PatternStore`: an immutable snapshot (patterns, their ids and the stacked arrays) that is replaced as a
+whole under a lock when new patterns arrive. A solve reads one snapshot and keeps it, so two threads that meet
+new patterns at the same time never see a half-built set of arrays (a reader either has the old snapshot, whose
+ids it uses, or the new one).
+"""
+from __future__ import annotations
+
+import threading
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from hipeq.solvers._arrays import PatternArrays, SystemArrays
+from hipeq.solvers._patterns import Pattern, analyse
+
+
+@dataclass(frozen=True, eq=False)
+class _Snapshot:
+    patterns: tuple[Pattern, ...]
+    ids: dict[int, int]  # pattern key -> position (never mutated once published)
+    arrays: PatternArrays | None
+
+
+def _stack(patterns: Sequence[Pattern]) -> PatternArrays:
+    def stacked(name: str, dtype: Any = None) -> np.ndarray:
+        # writeable (never written): numba compiles read-only arrays as a type of their own
+        return np.array([getattr(p, name) for p in patterns], dtype=dtype)
+
+    return PatternArrays(
+        extent_active=stacked("ext_active"), extent_basis=stacked("Zb"), extent_directions=stacked("W"),
+        extent_rank=stacked("neff", np.int64), extent_start=stacked("ext_dir"),
+        extent_start_extents=stacked("ext_xdir"), gibbs_active=stacked("gibbs_active"), gibbs_rows=stacked("Q"),
+        gibbs_rank=stacked("neq", np.int64), gibbs_start=stacked("gibbs_dir"), gibbs_null=stacked("gibbs_null"),
+        gibbs_null_rank=stacked("n_null", np.int64))
+
+
+class PatternStore:
+    """Append-only, thread-safe store of analysed feed patterns (see the module docstring).
+
+    Args:
+        nu: (nr, nc) stoichiometric matrix; element_null: (nc, k) basis of the null space of the element matrix;
+        elements: (ne, nc) element matrix.
+    """
+
+    def __init__(self, nu: np.ndarray, element_null: np.ndarray, elements: np.ndarray) -> None:
+        self._nu = nu
+        self._element_null = element_null
+        self._elements = elements
+        self._lock = threading.Lock()
+        self._snapshot = _Snapshot((), {}, None)
+
+    def lookup(self, keys: Iterable[int]) -> tuple[PatternArrays, list[int], tuple[Pattern, ...]]:
+        """The stacked arrays, the id of each key (bit i set when species i is fed) and the patterns, from one
+        snapshot; unknown keys are analysed and published first."""
+        keys = [int(k) for k in keys]
+        snapshot = self._snapshot  # one atomic read: everything below comes from this snapshot
+        if any(k not in snapshot.ids for k in keys):
+            with self._lock:
+                snapshot = self._snapshot
+                new = [k for k in dict.fromkeys(keys) if k not in snapshot.ids]
+                if new:
+                    nc = self._nu.shape[1] if self._nu.size else self._elements.shape[1]
+                    added = tuple(analyse(k, nc, self._nu, self._element_null, self._elements) for k in new)
+                    patterns = snapshot.patterns + added
+                    ids = dict(snapshot.ids)
+                    ids.update({k: len(snapshot.patterns) + j for j, k in enumerate(new)})
+                    snapshot = _Snapshot(patterns, ids, _stack(patterns))
+                    self._snapshot = snapshot
+        assert snapshot.arrays is not None
+        return snapshot.arrays, [snapshot.ids[k] for k in keys], snapshot.patterns
+
+    @property
+    def keys(self) -> tuple[int, ...]:
+        """Keys of the patterns analysed so far, in the order they were added."""
+        return tuple(p.key for p in self._snapshot.patterns)
+
+    def __getstate__(self) -> dict[str, Any]:
+        return {"nu": self._nu, "element_null": self._element_null, "elements": self._elements,
+                "patterns": self._snapshot.patterns}
+
+    def __setstate__(self, state: dict[str, Any]) -> None:
+        self.__init__(state["nu"], state["element_null"], state["elements"])  # type: ignore[misc]
+        patterns = tuple(state["patterns"])
+        if patterns:
+            self._snapshot = _Snapshot(patterns, {p.key: k for k, p in enumerate(patterns)}, _stack(patterns))
+
+
+class CompiledSystem:
+    """Fixed arrays of a reaction system (:class:`SystemArrays`) and its :class:`PatternStore`; safe to share
+    between threads. ``patterns_for(keys)`` is the one way to get pattern arrays for a solve."""
+
+    def __init__(self, arrays: SystemArrays, store: PatternStore) -> None:
+        self.arrays = arrays
+        self.store = store
+
+    def patterns_for(self, keys: Iterable[int]) -> tuple[PatternArrays, list[int], tuple[Pattern, ...]]:
+        """Arrays of every pattern known after ``keys`` were registered, the id of each key, and the patterns
+        (one consistent snapshot; see :meth:`PatternStore.lookup`)."""
+        return self.store.lookup(keys)
