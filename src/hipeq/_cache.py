@@ -15,7 +15,7 @@ The parent folder, first match wins:
 
 1. ``$NUMBA_CACHE_DIR/hipeq`` if numba's own cache folder is set (environment or ``.numba_config.yaml``), so that
    the numba idiom ``NUMBA_CACHE_DIR=$(mktemp -d)`` still gives a run of its own;
-2. ``$HIPEQ_CACHE_DIR``;
+2. ``$HIPEQ_CACHE_DIR`` (a relative path is taken from the working folder at import);
 3. ``$XDG_CACHE_HOME/hipeq``, else ``~/.cache/hipeq``;
 4. if the chosen folder cannot be written: ``<tempdir>/hipeq-<uid>`` (private to the user; a warning is issued
    when 1 or 2 was set explicitly).
@@ -248,9 +248,9 @@ class _FirstCompileNotice(_event.Listener):
             pass
         self.done = True
         if not _quiet():
-            print(f"hipeq: compiling the numerical core into {_DIR} (once per install or update of hipeq; up to a "
-                  "minute or two on a small machine, later runs load it in about a second; HIPEQ_QUIET=1 hides "
-                  "this line)", file=sys.stderr, flush=True)
+            print(f"hipeq: compiling the numerical core into {_DIR} (first run after an install or update: up to "
+                  "a minute or two; later runs load it in about a second; HIPEQ_QUIET=1 hides this)",
+                  file=sys.stderr, flush=True)
 
     def on_end(self, event: Any) -> None:
         pass

@@ -3,6 +3,7 @@
 Importing this package needs only numpy. The bundled species' databank constants are read from the stored file
 ``bundled_constants.toml``; ``chemicals`` is imported only to look up a species that is not bundled.
 """
+from hipeq import _pickle  # noqa: F401  (read-only mappings pickle as dicts)
 from hipeq.data.reactions import (Reaction, check_independent, element_matrix, independent_reactions,
                                   stoichiometric_matrix)
 from hipeq.data.species import Species, load_species_file, register_species, species

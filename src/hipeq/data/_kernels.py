@@ -17,7 +17,9 @@ from __future__ import annotations
 
 import math
 
-from numba import njit, prange
+from numba import prange
+
+from hipeq._jit import entry, parallel_entry
 
 from hipeq.data.heat_capacity import trc_cp, trc_integral, trc_integral_over_T
 
@@ -27,12 +29,12 @@ FORM_TRC, FORM_POLYNOMIAL, FORM_CONSTANT = 0, 1, 2
 COL_FORM, COL_HF, COL_S0, COL_C0 = 0, 1, 2, 3
 N_COLUMNS = 11
 
-_trc_cp = njit(cache=True)(trc_cp)
-_trc_h = njit(cache=True)(trc_integral)
-_trc_s = njit(cache=True)(trc_integral_over_T)
+_trc_cp = entry(trc_cp)
+_trc_h = entry(trc_integral)
+_trc_s = entry(trc_integral_over_T)
 
 
-@njit(cache=True)
+@entry
 def _poly_parts(T, row):
     """(∫Cp dT from 0, ∫Cp/T dT without the ln term's constant) of a polynomial Cp at T."""
     h = 0.0
@@ -47,7 +49,7 @@ def _poly_parts(T, row):
     return h, s
 
 
-@njit(cache=True)
+@entry
 def _parts(T, row):
     form = int(row[COL_FORM])
     if form == FORM_TRC:
@@ -60,7 +62,7 @@ def _parts(T, row):
     return c * T, c * math.log(T)
 
 
-@njit(cache=True)
+@entry
 def cp_one(T, row):
     """Cp°(T) [J/(mol K)] of one table row."""
     form = int(row[COL_FORM])
@@ -77,7 +79,7 @@ def cp_one(T, row):
     return row[COL_C0]
 
 
-@njit(cache=True)
+@entry
 def enthalpy_entropy_into(T, table, h_out, s_out):
     """H°_i(T) [J/mol] and S°_i(T) [J/(mol K)] of every row of ``table`` at T [K]."""
     for i in range(table.shape[0]):
@@ -88,7 +90,7 @@ def enthalpy_entropy_into(T, table, h_out, s_out):
         s_out[i] = row[COL_S0] + s1 - s0
 
 
-@njit(cache=True)
+@entry
 def gibbs_rt_into(T, table, out):
     """G°_i(T)/(R T) = (H°_i - T S°_i)/(R T) [-] of every row at T [K]."""
     for i in range(table.shape[0]):
@@ -98,14 +100,14 @@ def gibbs_rt_into(T, table, out):
         out[i] = (row[COL_HF] + h1 - h0 - T * (row[COL_S0] + s1 - s0)) / (R * T)
 
 
-@njit(cache=True, parallel=True)
+@parallel_entry
 def profiles_batch(T, table, H, S):
     """H°[k, i] and S°[k, i] for many temperatures T[k] [K], on the thread pool."""
     for k in prange(T.shape[0]):
         enthalpy_entropy_into(T[k], table, H[k], S[k])
 
 
-@njit(cache=True)
+@entry
 def profiles_serial(T, table, H, S):
     """:func:`profiles_batch` on one thread: the same numbers, without starting the thread pool (short T arrays,
     e.g. the ~500 nodes of a solver's g0 table)."""

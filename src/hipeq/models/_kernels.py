@@ -24,9 +24,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit, prange
+from numba import prange
 
-from hipeq._jit import inline_kernel, kernel
+from hipeq._jit import entry, inline_kernel, kernel, parallel_entry
 
 R = 8.314462618  # J/(mol K), CODATA 2018
 
@@ -684,7 +684,7 @@ def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scra
     return z, root
 
 
-@njit(cache=True)
+@entry
 def residual_dT_tp(code, T, P, y, aij, bi, daij, dbi, consts, out, dT):
     """ln phi_i and d ln phi_i/dT at fixed P, y, plus the mixture's residual Gibbs energy and enthalpy.
 
@@ -753,7 +753,7 @@ def residual_dT_tp(code, T, P, y, aij, bi, daij, dbi, consts, out, dT):
 # ---------------------------------------------------------------------------------------------------------
 # batch over states (used by the public fugacity_coefficients call)
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True, parallel=True)
+@parallel_entry
 def states_batch(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
     """Evaluate ln phi, d ln phi/dT, Z, root code, g_res/RT and h_res/RT for many states (T[k], P[k], Y[k])."""
     n = T.shape[0]

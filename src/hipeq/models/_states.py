@@ -8,7 +8,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit
+
+from hipeq._jit import entry
 
 from hipeq.models._kernels import (MODEL_CUBIC, MODEL_LEWIS_RANDALL, OMEGA_B, ROOT_INVALID, ROOT_LIQUID, R,
                                    effective_critical, residual_dT_tp, tdep_into)
@@ -21,7 +22,7 @@ ROOT_OVERFLOW = -2  # set by finish_states: the state's results are not all fini
 PARALLEL_MIN_STATES = 32  # below this many states the Python face runs ``states_serial``
 
 
-@njit(cache=True)
+@entry
 def check_states(T, P, Y, t_min, t_max, p_max, sum_tolerance):
     """Status of states (T[k], P[k], Y[k]): STATES_OK, or the first failing field's code. On success Y is
     normalised in place to sum exactly to 1."""
@@ -50,7 +51,7 @@ def check_states(T, P, Y, t_min, t_max, p_max, sum_tolerance):
     return STATES_OK
 
 
-@njit(cache=True)
+@entry
 def states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
     """Serial twin of ``_kernels.states_batch`` (same arguments and outputs) for a few states, where waking the
     thread pool costs more than the work and stalls on a busy machine. (``states_batch`` is not called from
@@ -67,7 +68,7 @@ def states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, ro
                                                             ln_phis[k], dln_phis_dT[k])
 
 
-@njit(cache=True)
+@entry
 def finish_states(code, T, P, Y, comp, consts, liquid_ratio, ln_phis, phis, dln_phis_dT, Z, volume, roots, g_res,
                   h_res):
     """After ``states_batch``/``states_serial``: phi_i = exp(ln phi_i), v = Z R T / P [m3/mol], h_res/RT ->

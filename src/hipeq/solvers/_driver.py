@@ -192,9 +192,9 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     n_t = 0.0
     z = 1.0
     root = 0
-    P = math.exp(s)
+    P = min(P_CEILING, max(P_FLOOR, math.exp(s)))
     for k in range(MAX_PRESSURE_STEPS):
-        P = math.exp(s)
+        P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
         status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
                                                          active, consts, coupled, tol, tol_g, max_iter, F, J, S,
                                                          SM, M, KV, IV)

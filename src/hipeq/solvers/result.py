@@ -126,9 +126,6 @@ class SpeciesValues(Mapping[str, Any]):
         view.flags.writeable = False
         return view
 
-    def __reduce__(self) -> tuple[Any, ...]:
-        return SpeciesValues, (self._names, dict(self._index), self._array)
-
     def __repr__(self) -> str:
         if self._array.ndim == 1:
             return "{" + ", ".join(f"{n!r}: {float(v):.6g}" for n, v in zip(self._names, self._array)) + "}"
@@ -152,24 +149,6 @@ class _SystemInfo:
     data_sources: Mapping[str, Mapping[str, str]]
     notes: tuple[str, ...]
     k_source: str
-
-    def __reduce__(self) -> tuple[Any, ...]:  # mapping proxies do not pickle: send plain dicts, wrap them again
-        return _rebuild_info, ({k: _plain(v) for k, v in vars(self).items()},)
-
-
-def _plain(value: Any) -> Any:
-    if isinstance(value, Mapping):
-        return {k: _plain(v) for k, v in value.items()}
-    return value
-
-
-def _rebuild_info(fields: dict[str, Any]) -> _SystemInfo:
-    def proxy(value: Any) -> Any:
-        if isinstance(value, dict):
-            return MappingProxyType({k: proxy(v) for k, v in value.items()})
-        return value
-
-    return _SystemInfo(**{k: proxy(v) for k, v in fields.items()})
 
 
 def _ln_k_y(nu: np.ndarray, y: np.ndarray) -> np.ndarray:

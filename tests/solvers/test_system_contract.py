@@ -1,0 +1,109 @@
+"""The contract the analysis layer relies on: fixed return types, pickling, with_model, raise_on_failure, Status.
+
+(Reliability regressions and properties live in test_reliability_regressions.py and
+tests/properties/test_reliability_properties.py.)
+"""
+from __future__ import annotations
+
+import pickle
+
+import numpy as np
+import pytest
+
+import hipeq
+from hipeq.errors import InputError, NotConvergedError
+from hipeq.solvers.result import Status
+
+SPECIES = ["N2", "H2", "NH3", "Ar"]
+FEED = {"N2": 1.0, "H2": 3.0, "Ar": 0.05}
+
+
+@pytest.fixture(scope="module")
+def system() -> hipeq.ReactionSystem:
+    return hipeq.ReactionSystem(SPECIES, eos="PR")
+
+
+@pytest.mark.parametrize("T", [700, 700.0, np.int64(700), np.float32(700.0), np.float64(700.0), np.array(700.0)])
+def test_scalar_inputs_of_any_numeric_type_give_one_result(system, T) -> None:
+    result = system.equilibrium(feed=FEED, T=T, P=np.float32(3e7))
+    assert isinstance(result, hipeq.EquilibriumResult) and result.converged
+    reference = system.equilibrium(feed=FEED, T=700.0, P=float(np.float32(3e7)))
+    assert result.y["NH3"] == reference.y["NH3"]
+
+
+def test_any_array_input_gives_a_batch(system) -> None:
+    batch = system.equilibrium(feed=FEED, T=[700.0], P=3e7)
+    assert isinstance(batch, hipeq.BatchResult) and batch.shape == (1,)
+
+
+def test_unit_strings_equal_the_si_call(system) -> None:
+    a = system.equilibrium(feed={"N2": "1 kmol", "H2": "3 kmol", "Ar": "50 mol"}, T="450 degC", P="300 bar")
+    b = system.equilibrium(feed={"N2": 1000.0, "H2": 3000.0, "Ar": 50.0}, T=723.15, P=3e7)
+    assert a.y.array.tolist() == b.y.array.tolist()
+    sealed = system.equilibrium(feed=FEED, T="450 degC", V="2.5 L")
+    assert sealed.V == pytest.approx(2.5e-3, rel=1e-10)
+
+
+@pytest.mark.parametrize("bad", [None, True, np.bool_(False), "450", "300 bar"])
+def test_bad_temperature_types_name_the_field_and_unit(system, bad) -> None:
+    with pytest.raises(InputError) as info:
+        system.equilibrium(feed=FEED, T=bad, P=3e7)
+    assert str(info.value).startswith("T:")
+
+
+def test_empty_batch_is_a_clear_error(system) -> None:
+    with pytest.raises(InputError, match="T: is empty"):
+        system.equilibrium(feed=FEED, T=np.array([]), P=3e7)
+
+
+def test_status_is_one_enum(system) -> None:
+    result = system.equilibrium(feed=FEED, T=700.0, P=3e7)
+    assert result.status is Status.CONVERGED and result.status == 0
+    failed = system.equilibrium(feed=FEED, T=700.0, P=3e7, max_iterations=1)
+    assert failed.status is Status.MAX_ITERATIONS and "iteration limit" in failed.message
+
+
+def test_raise_on_failure_is_honoured_on_batches(system) -> None:
+    with pytest.raises(NotConvergedError) as info:
+        system.equilibrium(feed=FEED, T=np.array([700.0, 700.0]), P=np.array([3e7, -1.0]), raise_on_failure=True)
+    assert isinstance(info.value.result, hipeq.BatchResult) and "1 of 2 states" in str(info.value)
+    ok = system.equilibrium(feed=FEED, T=np.array([700.0, 750.0]), P=3e7, raise_on_failure=True)
+    assert ok.converged.all()
+
+
+def test_pickle_round_trips(system) -> None:
+    result = system.equilibrium(feed=FEED, T=723.15, P=3e7)
+    _ = result.y, result.phi, result.message  # cached fields travel too
+    batch = system.equilibrium(feed=FEED, T=np.linspace(650.0, 800.0, 5), P=3e7)
+    copy_system = pickle.loads(pickle.dumps(system))
+    assert copy_system.compiled.store.keys == system.compiled.store.keys
+    again = copy_system.equilibrium(feed=FEED, T=723.15, P=3e7)
+    assert again.y.array.tolist() == result.y.array.tolist()
+    copy_result = pickle.loads(pickle.dumps(result))
+    assert copy_result.y.array.tolist() == result.y.array.tolist() and copy_result.message == result.message
+    assert copy_result.kij == result.kij and copy_result.data_sources == result.data_sources
+    copy_batch = pickle.loads(pickle.dumps(batch))
+    assert np.array_equal(copy_batch.y.array, batch.y.array) and copy_batch.messages == batch.messages
+    for record in system.records:
+        assert pickle.loads(pickle.dumps(record)) == record
+    model = pickle.loads(pickle.dumps(system.model))
+    assert np.array_equal(model.kmat, system.model.kmat) and model.kij == system.model.kij
+    reaction = pickle.loads(pickle.dumps(system.reactions[0]))
+    assert dict(reaction.coefficients) == dict(system.reactions[0].coefficients)
+
+
+@pytest.mark.parametrize("options", [{"eos": "ideal"}, {"eos": "SRK"}, {"eos": "PR78", "kij": "e-ppr78"},
+                                     {"eos": "virial"}])
+def test_with_model_equals_a_fresh_system(system, options) -> None:
+    other = system.with_model(**options)
+    fresh = hipeq.ReactionSystem(SPECIES, **options)
+    T = np.linspace(600.0, 800.0, 7)
+    a = other.equilibrium(feed=FEED, T=T, P=2e7)
+    b = fresh.equilibrium(feed=FEED, T=T, P=2e7)
+    assert a.eos == b.eos and np.array_equal(a.status, b.status)
+    assert np.max(np.abs(a.y.array - b.y.array)) <= 1e-12
+
+
+def test_with_model_rejects_unknown_options(system) -> None:
+    with pytest.raises(InputError, match="with_model"):
+        system.with_model(eos="PR", reactions=["N2 + 3 H2 = 2 NH3"])
