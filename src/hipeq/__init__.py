@@ -30,6 +30,7 @@ _PUBLIC = {
     "ReactionSystem": "hipeq.solvers.system",
     "EquilibriumResult": "hipeq.solvers.result",
     "BatchResult": "hipeq.solvers.result",
+    "Status": "hipeq.solvers.result",
     "HipeqError": "hipeq.errors",
     "InputError": "hipeq.errors",
     "UnknownSpeciesError": "hipeq.errors",

@@ -204,6 +204,13 @@ def test_temperature_derivatives(config, state):
     h = 1e-5 * T
     shifted = _evaluate(model, np.array([T + h, T - h]), P, y)
     _same_root(shifted, centre)
+    # The Soave alpha's 1 + m (1 - sqrt(T/Tc)) changes sign near T/Tc = (1 + 1/m)^2 (about 8 Tc for N2), where
+    # the one-fluid a_ij = sqrt(a_i a_j) has a kink: a central difference across it is not a derivative.
+    for i, name in enumerate(names):
+        if model.comp[i, K.M_ALPHA] > 0.0:
+            tc = K.effective_critical(float(T), model.comp, i)[0]  # quantum gases: the effective T_c
+            kink = tc * (1.0 + 1.0 / model.comp[i, K.M_ALPHA]) ** 2
+            assume(abs(T - kink) > 1e-3 * T)
     dln_phi = (shifted.ln_phis[0] - shifted.ln_phis[1]) / (2 * h)
     np.testing.assert_allclose(centre.dln_phis_dT, dln_phi, rtol=1e-5, atol=1e-9)
     dg = (shifted.g_res_RT[0] - shifted.g_res_RT[1]) / (2 * h)

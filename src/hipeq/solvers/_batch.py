@@ -23,14 +23,14 @@ from hipeq.units import to_si
 if TYPE_CHECKING:
     from hipeq.solvers.system import ReactionSystem
 
+from hipeq.solvers.system import feed_amount  # noqa: E402  (system imports this module lazily)
+
 BLOCK = 1 << 16
 MAX_CHUNK = 128
 CHUNKS_PER_BLOCK = 16  # chunks of a block (independent of the thread count: answers do not depend on it)
 MAX_STATES = 50_000_000  # one call; larger maps are split by the caller (analysis layer)
 
 
-def _numbers(value: Any, field: str) -> np.ndarray:
-    return np.asarray(to_si(value, "amount", field), dtype=float)
 
 
 def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.ndarray]], list[tuple[int, ...]]]:
@@ -41,11 +41,11 @@ def _feed_arrays(system: ReactionSystem, feed: Any) -> tuple[list[tuple[int, np.
         cols: dict[int, np.ndarray] = {}
         for name, amount in feed.items():
             j = system.species_index(name)
-            arr = _numbers(amount, f"feed[{name!r}]")
+            arr = np.asarray(feed_amount(name, amount), dtype=float)
             cols[j] = cols[j] + arr if j in cols else arr
         items = sorted(cols.items())
         return items, [a.shape for _, a in items]
-    arr = _numbers(feed, "feed")
+    arr = np.asarray(to_si(feed, "amount", "feed"), dtype=float)
     if arr.ndim == 0 or arr.shape[-1] != nc:
         raise InputError("feed", f"an array feed needs species along the last axis ({nc}, in the order "
                                  f"{list(system.species_names)}), got shape {arr.shape}")

@@ -51,7 +51,8 @@ from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_BI,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
                                    REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, S_AUX, S_D, S_LNK, S_RHS, S_SCALE,
                                    S_XI, S_XI_PREV, S_XI_START, SINGULAR, SM_L, adjust_g0, element_residuals,
-                                   elements_closed, g0_into, make_work)
+                                   elements_closed, g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
+                                   IV_PIV)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
@@ -68,33 +69,103 @@ VIRIAL_MAX_DEPARTURE = 0.5
 LEWIS_RANDALL_P_MAX = 2e8  # [Pa]
 # deterministic cold starts n0 + eps (p - f): eps as fractions of the largest step that keeps n >= 0
 COLD_FRACTIONS = (0.5, 0.02, 0.98)
+MAX_VERTEX_SETS = 5000.0  # several_roots_possible: beyond this many candidate vertices, assume several roots
 START_GUESS = 0
 START_WARM = 1
 START_COLD = 2
 
 
 @kernel
-def several_roots_possible(code, T, aij, bi, consts, active):
-    """True when the cubic could have three volume roots at some composition of the active species at T [K].
+def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, M, rhs, x, idx, piv):
+    """True when the cubic could have three volume roots at T [K] for some composition the feed ``n0`` can reach
+    (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the active
+    species).
 
-    With the one-fluid rule, a = sum_ij y_i y_j a_ij <= c (sum_i y_i sqrt(a_i))^2 <= c b max_i(a_i / b_i)
-    (Cauchy-Schwarz; c = max(1, max_ij a_ij / sqrt(a_i a_j)) covers negative k_ij), and the isotherm of a cubic
-    with fixed a and b is monotonic (one root at every P) when a / (b R T) < Omega_a / Omega_b (its critical
-    condition; Michelsen & Mollerup 2007, ch. 3). So this is False only when no composition can have a van der
-    Waals loop. Always False for the other models (one root per state)."""
+    With the one-fluid rule, a = sum_ij y_i y_j a_ij <= c (sum_i y_i sqrt(a_i))^2 <= c b sum_i y_i a_i / b_i
+    (Cauchy-Schwarz twice; c = max(1, max_ij a_ij / sqrt(a_i a_j)) covers negative k_ij), and the isotherm of a
+    cubic with fixed a and b is monotonic (one volume root at every P) when a / (b R T) < Omega_a / Omega_b (its
+    critical condition; Michelsen & Mollerup 2007, ch. 3). So three roots need sum_i n_i (c r_i - L) >= 0 with
+    r_i = a_i / (b_i R T) and L = Omega_a / Omega_b; that linear function is largest at a vertex of the feasible
+    polytope, and the vertices (n_null of the amounts at zero) are enumerated; past MAX_VERTEX_SETS sets of
+    species the answer is True (the safe side). Always False for the other models (one root per state).
+    ``M``, ``rhs``, ``x``, ``idx``, ``piv`` are scratch."""
     if code != MODEL_CUBIC:
         return False
     nc = bi.shape[0]
+    limit = consts[OMEGA_A] / consts[OMEGA_B]
     c = 1.0
-    ratio = 0.0
+    top = -np.inf
     for i in range(nc):
-        if not active[i] or not (bi[i] > 0.0):
-            continue
-        ratio = max(ratio, aij[i, i] / (bi[i] * R * T))
-        for j in range(i + 1, nc):
-            if active[j] and aij[i, i] > 0.0 and aij[j, j] > 0.0:
-                c = max(c, aij[i, j] / math.sqrt(aij[i, i] * aij[j, j]))
-    return c * ratio >= consts[OMEGA_A] / consts[OMEGA_B]
+        if active[i] and bi[i] > 0.0 and aij[i, i] > 0.0:
+            for j in range(i + 1, nc):
+                if active[j] and aij[j, j] > 0.0:
+                    c = max(c, aij[i, j] / math.sqrt(aij[i, i] * aij[j, j]))
+    for i in range(nc):
+        if active[i] and bi[i] > 0.0:
+            top = max(top, c * aij[i, i] / (bi[i] * R * T) - limit)
+    if top < 0.0:
+        return False  # no active species is below its (kij-widened) critical temperature
+    feed = 0.0
+    for i in range(nc):
+        if active[i] and bi[i] > 0.0:
+            feed += n0[i] * (c * aij[i, i] / (bi[i] * R * T) - limit)
+    if feed >= 0.0 or n_null == 0:
+        return feed >= 0.0
+    # every set of n_null of the m active species (lexicographic positions in ``idx``): a candidate vertex
+    m = 0
+    for i in range(nc):
+        if active[i]:
+            m += 1
+    if n_null > m:
+        return True
+    sets = 1.0
+    for k in range(n_null):
+        sets = sets * (m - k) / (k + 1)
+    if sets > MAX_VERTEX_SETS:
+        return True
+    scale = 0.0
+    for i in range(nc):
+        scale += n0[i]
+    for k in range(n_null):
+        idx[k] = k
+    while True:
+        # solve null[S, :] t = -n0[S] for the set S, then n = n0 + null t
+        a = 0
+        position = 0
+        for i in range(nc):
+            if not active[i]:
+                continue
+            if a < n_null and idx[a] == position:
+                for b in range(n_null):
+                    M[a, b] = null[i, b]
+                rhs[a] = -n0[i]
+                a += 1
+            position += 1
+        if lu_solve(M, rhs, n_null, x, piv):
+            feasible = True
+            value = 0.0
+            for i in range(nc):
+                if not active[i]:
+                    continue
+                v = n0[i]
+                for b in range(n_null):
+                    v += null[i, b] * x[b]
+                if v < -1e-12 * scale:
+                    feasible = False
+                    break
+                if bi[i] > 0.0:
+                    value += max(v, 0.0) * (c * aij[i, i] / (bi[i] * R * T) - limit)
+            if feasible and value >= 0.0:
+                return True
+        # next set
+        k = n_null - 1
+        while k >= 0 and idx[k] == m - n_null + k:
+            k -= 1
+        if k < 0:
+            return False
+        idx[k] += 1
+        for j in range(k + 1, n_null):
+            idx[j] = idx[j - 1] + 1
 
 
 @kernel
@@ -367,7 +438,9 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     n_feed = 0.0
     for i in range(nc):
         n_feed += n0[i]
-    ambiguous = several_roots_possible(code, T, J[J_AIJ], F[F_BI], consts, patterns.gibbs_active[pat])
+    ambiguous = several_roots_possible(code, T, J[J_AIJ], F[F_BI], consts, patterns.gibbs_active[pat], n0,
+                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], M, KV[KV_RHS],
+                                       KV[KV_SOL], IV[IV_IDX], IV[IV_PIV])
     fixed_volume = opts.fixed_volume
     recorded = False
     total_iterations = 0

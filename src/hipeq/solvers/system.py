@@ -52,6 +52,15 @@ VOLUME_TOL = 1e-12  # |ln(V_equilibrium / V)| at convergence of a sealed-vessel 
 MAX_SPECIES = 62  # the zero-feed pattern is kept in the bits of one int64
 
 
+def feed_amount(name: Any, amount: Any) -> float | np.ndarray:
+    """The amount [mol] of species ``name`` in a feed: a number, an array, or a string with a unit (``"3 kmol"``),
+    through :func:`hipeq.units.to_si`; an InputError names the field ``feed`` and the species."""
+    try:
+        return to_si(amount, "amount", "feed")
+    except InputError as err:
+        raise InputError("feed", f"amount of {name!r}: {str(err).removeprefix('feed: ')}") from None
+
+
 class ReactionSystem:
     """A set of gas species, their independent reactions and a fugacity model, ready for equilibrium solves.
 
@@ -271,7 +280,7 @@ class ReactionSystem:
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
         scalar = type(T_si) is float and type(value_si) is float
         if scalar and isinstance(feed, Mapping):
-            feed = {name: to_si(amount, "amount", f"feed[{name!r}]") for name, amount in feed.items()}
+            feed = {name: feed_amount(name, amount) for name, amount in feed.items()}
             scalar = all(type(v) is float for v in feed.values())
         elif scalar:
             scalar = np.ndim(feed) == 1
