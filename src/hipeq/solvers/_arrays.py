@@ -82,6 +82,7 @@ class AnswerLayout(NamedTuple):
     (``INT_COLUMNS`` long)."""
 
     amounts: int  # nc
+    y: int  # nc, mole fractions
     ln_phis: int  # nc
     extents: int  # nr
     ln_k: int  # nr
@@ -101,8 +102,8 @@ INT_COLUMNS = 7
 
 @inline_kernel
 def answer_layout(nc: int, nr: int, ne: int) -> AnswerLayout:
-    """Offsets of the float answer row: amounts (nc), ln phi (nc), extents, ln K, residuals (nr each), element
-    residuals (ne), then P, V, Z and G/RT."""
-    tail = 2 * nc + 3 * nr + ne
-    return AnswerLayout(0, nc, 2 * nc, 2 * nc + nr, 2 * nc + 2 * nr, 2 * nc + 3 * nr, tail, tail + 1, tail + 2,
-                        tail + 3, tail + 4)
+    """Offsets of the float answer row: amounts, mole fractions, ln phi (nc each), extents, ln K, residuals (nr
+    each), element residuals (ne), then P, V, Z and G/RT."""
+    tail = 3 * nc + 3 * nr + ne
+    return AnswerLayout(0, nc, 2 * nc, 3 * nc, 3 * nc + nr, 3 * nc + 2 * nr, 3 * nc + 3 * nr, tail, tail + 1,
+                        tail + 2, tail + 3, tail + 4)

@@ -334,8 +334,12 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
     """Write the current iterate (rows F_N, F_LNPHI, F_MU, S_XI of the work buffers) as the answer of a state."""
     nc = n0.shape[0]
     nr = nu.shape[0]
+    total = 0.0
+    for i in range(nc):
+        total += F[F_N, i]
     for i in range(nc):
         row[layout.amounts + i] = F[F_N, i]
+        row[layout.y + i] = F[F_N, i] / total if total > 0.0 else 0.0
         row[layout.ln_phis + i] = F[F_LNPHI, i] if root >= 0 else 0.0
     for r in range(nr):
         frozen = False
@@ -582,8 +586,13 @@ def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, rows
         row = rows[k]
         if valid[k] == 0:
             row[:] = 0.0
+            total = 0.0
             for i in range(nc):
                 row[layout.amounts + i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
+                total += row[layout.amounts + i]
+            for i in range(nc):
+                if total > 0.0 and math.isfinite(total):
+                    row[layout.y + i] = row[layout.amounts + i] / total
             ok = math.isfinite(PV[k])
             row[layout.P] = PV[k] if (ok and not opts.fixed_volume) else 0.0
             row[layout.V] = PV[k] if (ok and opts.fixed_volume) else 0.0

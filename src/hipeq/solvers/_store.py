@@ -61,7 +61,7 @@ class PatternStore:
         snapshot; unknown keys are analysed and published first."""
         keys = [int(k) for k in keys]
         snapshot = self._snapshot  # one atomic read: everything below comes from this snapshot
-        if any(k not in snapshot.ids for k in keys):
+        if not all(k in snapshot.ids for k in keys):
             with self._lock:
                 snapshot = self._snapshot
                 new = [k for k in dict.fromkeys(keys) if k not in snapshot.ids]

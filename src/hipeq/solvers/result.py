@@ -42,6 +42,7 @@ from typing import Any
 import numpy as np
 
 from hipeq.solvers import _common as C
+from hipeq.solvers import _arrays as A
 from hipeq.solvers._arrays import METHOD_NAMES
 
 __all__ = ["EquilibriumResult", "BatchResult", "SpeciesValues", "Status", "STATUS_NAMES", "STATUS_MESSAGES",
@@ -180,6 +181,7 @@ class _Common:
 
     _info: _SystemInfo
     _amounts: np.ndarray
+    _y: np.ndarray
     _feed: np.ndarray
     _ln_phis: np.ndarray
     _ln_k: np.ndarray
@@ -203,8 +205,7 @@ class _Common:
     @cached_property
     def y(self) -> SpeciesValues:
         """Equilibrium mole fractions [-] per species."""
-        total = self._amounts.sum(axis=-1, keepdims=True)
-        return SpeciesValues(self._info.species, self._info.index, self._amounts / np.where(total > 0, total, 1.0))
+        return SpeciesValues(self._info.species, self._info.index, self._y)
 
     @cached_property
     def phi(self) -> SpeciesValues:
@@ -238,8 +239,7 @@ class _Common:
     @cached_property
     def K_y(self) -> np.ndarray:
         """prod_i y_i^nu_i per reaction [-] (not meaningful for reactions that cannot proceed)."""
-        total = self._amounts.sum(axis=-1, keepdims=True)
-        return _exp(_ln_k_y(self._info.nu, self._amounts / np.where(total > 0, total, 1.0)))
+        return _exp(_ln_k_y(self._info.nu, self._y))
 
     @cached_property
     def element_residuals(self) -> SpeciesValues:
@@ -345,6 +345,7 @@ class EquilibriumResult(_Common):
     Z: float
     G_RT: float
     _amounts: np.ndarray
+    _y: np.ndarray
     _feed: np.ndarray
     _ln_phis: np.ndarray
     extents: np.ndarray
@@ -411,6 +412,7 @@ class BatchResult(_Common):
     Z: np.ndarray
     G_RT: np.ndarray
     _amounts: np.ndarray
+    _y: np.ndarray
     _feed: np.ndarray
     _ln_phis: np.ndarray
     extents: np.ndarray
@@ -493,29 +495,35 @@ class BatchResult(_Common):
 def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndarray, T: float, n0: np.ndarray,
                   method_requested: str, scheme: str, fixed_volume: bool,
                   frozen: tuple[str, ...]) -> EquilibriumResult:
-    """An :class:`EquilibriumResult` from one state's packed answer rows (``hipeq.solvers._arrays``)."""
-    from hipeq.solvers import _arrays as A
-
+    """An :class:`EquilibriumResult` from one state's packed answer rows (``hipeq.solvers._arrays``): views of
+    ``row``, no copies. Built without the dataclass ``__init__`` (a frozen dataclass sets each of its fields through
+    ``object.__setattr__``, a few microseconds on a path that sits inside users' loops)."""
     nc, nr, ne = len(info.species), len(info.reactions), len(info.elements)
-    for arr in (row, ints, n0):
-        arr.flags.writeable = False
-    root = int(ints[A.ROOT])
-    return EquilibriumResult(
-        T, float(row[layout.P]), float(row[layout.V]), float(row[layout.Z]), float(row[layout.G]),
-        row[layout.amounts:layout.amounts + nc], n0, row[layout.ln_phis:layout.ln_phis + nc],
-        row[layout.extents:layout.extents + nr], row[layout.ln_k:layout.ln_k + nr],
-        row[layout.residuals:layout.residuals + nr], row[layout.element_residuals:layout.element_residuals + ne],
-        int(ints[A.ITERATIONS]), int(ints[A.OUTER]), Status(int(ints[A.STATUS])), int(ints[A.REASON]),
-        METHOD_NAMES[int(ints[A.METHOD])], method_requested, scheme, ROOT_NAMES.get(root, "none"),
-        bool(ints[A.LIQUID]), fixed_volume, frozen, info)
+    row.flags.writeable = False
+    n0.flags.writeable = False
+    status, iterations, outer, root, reason, method, liquid = ints.tolist()
+    result = object.__new__(EquilibriumResult)
+    result.__dict__.update(
+        T=T, P=float(row[layout.P]), V=float(row[layout.V]), Z=float(row[layout.Z]), G_RT=float(row[layout.G]),
+        _amounts=row[layout.amounts:layout.amounts + nc], _y=row[layout.y:layout.y + nc], _feed=n0,
+        _ln_phis=row[layout.ln_phis:layout.ln_phis + nc], extents=row[layout.extents:layout.extents + nr],
+        _ln_k=row[layout.ln_k:layout.ln_k + nr], residuals=row[layout.residuals:layout.residuals + nr],
+        _element_res=row[layout.element_residuals:layout.element_residuals + ne], iterations=iterations,
+        outer_iterations=outer, status=_STATUSES[status], reason=reason, method=METHOD_NAMES[method],
+        method_requested=method_requested, scheme=scheme, root=ROOT_NAMES.get(root, "none"),
+        liquid_like=bool(liquid), fixed_volume=fixed_volume, frozen_reactions=frozen, _info=info)
+    return result
+
+
+_STATUSES = tuple(Status)
+assert (A.STATUS, A.ITERATIONS, A.OUTER, A.ROOT, A.REASON, A.METHOD, A.LIQUID) == tuple(range(A.INT_COLUMNS)), \
+    "scalar_result unpacks the integer answer row in this order"
 
 
 def batch_result(info: _SystemInfo, layout: Any, rows: np.ndarray, ints: np.ndarray, shape: tuple[int, ...],
                  T: np.ndarray, N0: np.ndarray, method_requested: str, scheme: str, fixed_volume: bool,
                  invalid_reasons: Mapping[int, str]) -> BatchResult:
     """A :class:`BatchResult` over ``shape`` from packed answer rows, one per state (views, no copies)."""
-    from hipeq.solvers import _arrays as A
-
     nc, nr, ne = len(info.species), len(info.reactions), len(info.elements)
 
     def columns(first: int, count: int) -> np.ndarray:
@@ -529,7 +537,7 @@ def batch_result(info: _SystemInfo, layout: Any, rows: np.ndarray, ints: np.ndar
 
     return BatchResult(
         shape, T.reshape(shape), column(layout.P), column(layout.V), column(layout.Z), column(layout.G),
-        columns(layout.amounts, nc), N0.reshape(shape + (nc,)), columns(layout.ln_phis, nc),
+        columns(layout.amounts, nc), columns(layout.y, nc), N0.reshape(shape + (nc,)), columns(layout.ln_phis, nc),
         columns(layout.extents, nr), columns(layout.ln_k, nr), columns(layout.residuals, nr),
         columns(layout.element_residuals, ne), integers(A.ITERATIONS), integers(A.OUTER), integers(A.STATUS),
         integers(A.REASON), integers(A.METHOD), method_requested, scheme, integers(A.ROOT),

@@ -133,6 +133,7 @@ class ReactionSystem:
             g0_nodes=np.array(self.table.values), nu=np.ascontiguousarray(self.nu), nu_pinv=self._nu_pinv,
             elements=np.ascontiguousarray(self.element_matrix), complete=bool(rank == self._element_null.shape[1]))
         self.compiled = CompiledSystem(arrays, PatternStore(arrays.nu, self._element_null, arrays.elements))
+        self._layout = A.answer_layout(nc, len(self.reactions), len(self.elements))
         self._options: dict[tuple, A.Options] = {}
         self._frozen_cache: dict[tuple[int, str], tuple[str, ...]] = {}
         self._bits = np.array([1 << k for k in range(nc)], dtype=np.int64)
@@ -300,18 +301,22 @@ class ReactionSystem:
                                   initial_guess, raise_on_failure)
 
     def _feed_vector(self, feed: Any) -> tuple[np.ndarray, int]:
+        """The feed as amounts [mol] in species order and its pattern key (bit i set when species i is fed)."""
         nc = len(self.species_names)
-        n0 = np.zeros(nc)
-        key = 0
         if isinstance(feed, Mapping):
             if not feed:
                 raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
+            amounts = [0.0] * nc
+            index = self._index
             for name, amount in feed.items():
-                j = self.species_index(name)
+                j = index.get(name)
+                if j is None:
+                    j = self.species_index(name)
                 v = float(amount)  # already a float (see equilibrium)
-                if not (v >= 0.0 and math.isfinite(v)):
+                if not (0.0 <= v < math.inf):
                     raise InputError("feed", f"amount of {name!r} must be finite and >= 0 mol, got {amount!r}")
-                n0[j] += v
+                amounts[j] += v
+            n0 = np.array(amounts)
         else:
             arr = to_si(feed, "amount", "feed")
             if np.shape(arr) != (nc,):
@@ -319,9 +324,11 @@ class ReactionSystem:
                                          f", got shape {np.shape(arr)}")
             if not (np.all(np.isfinite(arr)) and np.all(arr >= 0.0)):
                 raise InputError("feed", f"amounts must be finite and >= 0 mol, got {np.asarray(arr).tolist()}")
-            n0[:] = arr
-        for j in range(nc):
-            if n0[j] > 0.0:
+            n0 = np.array(arr, dtype=float)
+            amounts = n0.tolist()
+        key = 0
+        for j, v in enumerate(amounts):
+            if v > 0.0:
                 key |= 1 << j
         if key == 0:
             raise InputError("feed", "all amounts are zero; give at least one positive amount [mol]")
@@ -354,17 +361,16 @@ class ReactionSystem:
         elif not (0.0 < value <= P_MAX):
             raise InputError("P", f"must be finite, > 0 Pa and <= {P_MAX:g} Pa, got {value!r}")
         n0, key = self._feed_vector(feed)
-        patterns, (pat,), known = self.compiled.patterns_for((key,))
+        patterns, (pat,), known = self.compiled.patterns_for((key,))  # one snapshot for this solve
         guess = self._guess(initial_guess, n0, method)
         options = self._opts(method, scheme, tol, max_iterations, fixed_volume, guess is not None)
-        nc, nr, ne = n0.size, len(self.reactions), len(self.elements)
         ln_k_user = _EMPTY
         if self._ln_K is not None:
             ln_k_user = self._user_ln_k(np.array([T]))[0]
             if not np.all(np.isfinite(ln_k_user)):
                 raise InputError("ln_K", f"the ln_K callable returned {ln_k_user.tolist()} at T = {T!r} K: every "
                                          "value must be finite")
-        layout = A.answer_layout(nc, nr, ne)
+        layout = self._layout
         row = np.empty(layout.width)
         ints = np.empty(A.INT_COLUMNS, dtype=np.int64)
         D.solve_one(self.compiled.arrays, patterns, T, value, n0, pat, ln_k_user,
