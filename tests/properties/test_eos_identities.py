@@ -175,7 +175,10 @@ def test_ideal_gas_limit_at_low_pressure(config, state):
     assert np.all(np.abs(low.ln_phis) < 1e-5)
     assert np.all(np.abs(low.Z - 1.0) < 1e-5)
     # linear in P (second-virial regime): ln phi(2 Pa) = 2 ln phi(1 Pa) up to O(P^2) and rounding
-    np.testing.assert_allclose(low.ln_phis[1], 2.0 * low.ln_phis[0], rtol=1e-4, atol=1e-14)
+    # atol: the cubic root is polished until the Newton step is below 1e-14 Z (models/_kernels.py), and ln phi_i
+    # carries that error times about b_i/b + 1/(Z - B) ~ 2-3; a component whose ln phi nearly cancels to 1e-11
+    # (CO2 beside methanol at 300 K) shows it
+    np.testing.assert_allclose(low.ln_phis[1], 2.0 * low.ln_phis[0], rtol=1e-4, atol=5e-14)
 
 
 @configs

@@ -469,7 +469,9 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
         elif phase == 0 and warm and not ambiguous:
             special = START_WARM
         first_cold = 0 if special == START_COLD else 1
-        n_starts = first_cold + (len(COLD_FRACTIONS) if ambiguous else 1)
+        # every cold start where several stationary points may exist; elsewhere the next cold start only when
+        # the previous one failed (the first that converges answers)
+        n_starts = first_cold + len(COLD_FRACTIONS)
         for k in range(n_starts):
             started = False
             if k < first_cold and special == START_GUESS:

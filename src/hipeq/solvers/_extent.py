@@ -233,8 +233,9 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
             gmax = _gradient(W, mu, active, neff, grad)
+        met = not inner and gmax <= tol  # the current iterate meets the tolerance
         if not inner:
-            if gmax <= tol:
+            if met:
                 # met; polish while the steps still halve the residual, so that the answer does not depend on
                 # the start (a warm start stopping at 5e-12 and a cold one at 1e-16 would differ by ~1e-12)
                 if gmax <= POLISH_TOL or polish >= MAX_POLISH or (polish > 0 and gmax > 0.5 * last):
@@ -253,7 +254,7 @@ def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts,
         status, n_t, z_new, root_new, g = _step(trial, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi,
                                                 consts, n_t, z, g, views)
         if status >= 0:
-            if polish > 0:  # the tolerance was met before the polish step
+            if met:  # a polish step failed; the current iterate (left as it was) meets the tolerance
                 return CONVERGED, iterations, outer, n_t, z, root
             return status, iterations, outer, n_t, z, root
         if coupled:

@@ -246,8 +246,9 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
             rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
+        met = not inner and rmax <= tol and emax <= ELEMENT_TOL  # the current iterate meets the tolerances
         if not inner:
-            if rmax <= tol and emax <= ELEMENT_TOL:
+            if met:
                 if (rmax <= POLISH_TOL and emax <= POLISH_TOL) or polish >= MAX_POLISH or (
                         polish > 0 and max(rmax, emax) > 0.5 * last):
                     return CONVERGED, iterations, outer, n_t, z, root
@@ -262,7 +263,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                                               F[F_Y_TRY], F[F_N_TRY])
         ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV)
         if not ok:
-            if polish > 0:  # the tolerances were met before the polish
+            if met:  # a polish step failed; the current iterate (not yet moved) meets the tolerances
                 return CONVERGED, iterations, outer, n_t, z, root
             return SINGULAR, iterations, outer, n_t, z, root
         _update(neq, n, n_t, m, S, KV, IV)

@@ -60,14 +60,20 @@ def null_space(matrix: np.ndarray) -> np.ndarray:
 
 
 def independent_rows(matrix: np.ndarray) -> list[int]:
-    """Indices of rows of ``matrix`` that are linearly independent, taken greedily in order (each kept row raises
-    the rank, relative cut 1e-10)."""
+    """Indices of rows of ``matrix`` that are linearly independent, taken greedily, rows with the fewest non-zero
+    entries first (each kept row raises the rank, relative cut 1e-10).
+
+    For element rows on the species present, an element carried by few species is solved directly and the
+    balances left out follow as sums of the kept ones: a trace element (say oxygen, carried only by 1e-12 mol of
+    CO beside 0.9 mol of CH4) is then not the small difference of two large balances (carbon minus hydrogen/4),
+    which would leave it off by ~1e-4 of itself."""
+    order = sorted(range(matrix.shape[0]), key=lambda k: (int(np.count_nonzero(matrix[k])), k))
     kept: list[int] = []
-    for k in range(matrix.shape[0]):
+    for k in order:
         trial = matrix[kept + [k]]
         if np.linalg.matrix_rank(trial, tol=1e-10 * max(1.0, float(np.abs(trial).max(initial=0.0)))) > len(kept):
             kept.append(k)
-    return kept
+    return sorted(kept)
 
 
 def _support(f: np.ndarray, span: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
