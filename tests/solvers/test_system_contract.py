@@ -107,3 +107,27 @@ def test_with_model_equals_a_fresh_system(system, options) -> None:
 def test_with_model_rejects_unknown_options(system) -> None:
     with pytest.raises(InputError, match="with_model"):
         system.with_model(eos="PR", reactions=["N2 + 3 H2 = 2 NH3"])
+
+
+def test_state_solver_fills_caller_arrays_with_the_equilibrium_answers(system) -> None:
+    solve = system.state_solver()
+    n = 40
+    T = np.linspace(600.0, 900.0, n)
+    P = np.geomspace(1e6, 5e7, n)
+    feed = np.tile([1.0, 3.0, 0.0, 0.05], (n, 1))
+    feed[3] = [-1.0, 3.0, 0.0, 0.0]  # out of range: status 6, nothing raised
+    y, status, amounts, pressure = np.empty((n, 4)), np.empty(n, dtype=np.int64), np.empty((n, 4)), np.empty(n)
+    failed = solve(T, P, feed, y, status, amounts, pressure)
+    assert failed == 1 and status[3] == Status.INVALID_INPUT
+    reference = system.equilibrium(feed=feed, T=T, P=P)
+    assert np.array_equal(status, reference.status)
+    ok = status == 0
+    assert np.max(np.abs(y[ok] - reference.y.array[ok])) <= 1e-12
+    assert np.max(np.abs(amounts[ok] - reference.amounts.array[ok])) <= 1e-12
+    one = np.empty((1, 4))
+    assert solve(T[:1], P[:1], feed[:1], one) == 0
+    assert np.max(np.abs(one[0] - system.equilibrium(feed=feed[0], T=T[0], P=P[0]).y.array)) <= 1e-12
+    sealed = system.state_solver(fixed_volume=True)
+    assert sealed(T[:2], np.array([1e-3, 2e-3]), feed[:2], np.empty((2, 4))) == 0
+    with pytest.raises(InputError):
+        solve(T, P, feed[:, :3], y)

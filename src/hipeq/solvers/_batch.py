@@ -103,36 +103,17 @@ def neighbour_order(T: np.ndarray, PV: np.ndarray, pats: np.ndarray) -> np.ndarr
     return np.argsort(key).astype(np.int64)
 
 
-def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_volume: bool, method: str,
-                scheme: str, tol: float, max_iterations: int) -> BatchResult:
-    """Body of :meth:`ReactionSystem.equilibrium_batch` (see there); T [K] and value (P [Pa] or V [m3]) are
-    already SI numbers or arrays."""
-    field = "V" if fixed_volume else "P"
-    T_arr = np.asarray(T, dtype=float)
-    PV_arr = np.asarray(value, dtype=float)
-    cols, feed_shapes = _feed_arrays(system, feed)
-    try:
-        shape = np.broadcast_shapes(T_arr.shape, PV_arr.shape, *feed_shapes)
-    except ValueError:
-        raise InputError("T", f"T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} do not "
-                              "broadcast to one shape of states") from None
-    n = int(np.prod(shape)) if shape else 1
-    if n == 0:
-        raise InputError("T", f"no states: T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} "
-                              "broadcast to an empty shape; give at least one value")
-    if n > MAX_STATES:
-        raise InputError("T", f"{n} states in one call is more than {MAX_STATES}; split the work into calls of at "
-                              "most that many states")
-    options = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
+def solve_rows(system: ReactionSystem, Tf: np.ndarray, PVf: np.ndarray, N0: np.ndarray, scalar_feed: bool,
+               options: A.Options, out: np.ndarray | None = None, ints: np.ndarray | None = None
+               ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Solve the states (Tf[k], PVf[k], N0[k]) (C-contiguous float64; ``scalar_feed``: every row of N0 is the
+    same) into packed answer rows ``out`` (n, width) and ``ints`` (n, INT_COLUMNS), allocated when not given.
+    Returns (out, ints, valid, bad_ln_k): ``valid`` 0 where a state's input was out of range, ``bad_ln_k`` True
+    where the user's ln K was not finite (empty without a user ln K)."""
     compiled = system.compiled
-    nc, nr, ne = len(system.species_names), len(system.reactions), len(system.elements)
-    # fresh writeable C-contiguous copies: one compiled signature whatever the caller passed
-    Tf = np.array(np.broadcast_to(T_arr, shape).reshape(n), dtype=np.float64, order="C")
-    PVf = np.array(np.broadcast_to(PV_arr, shape).reshape(n), dtype=np.float64, order="C")
-    N0 = np.zeros((n, nc))
-    for j, arr in cols:
-        N0[:, j] = np.broadcast_to(arr, shape).reshape(n)
-    scalar_feed = all(arr.ndim == 0 for _, arr in cols)
+    n = Tf.shape[0]
+    nr = len(system.reactions)
+    fixed_volume = options.fixed_volume
     # validity (one compiled pass) and feed patterns (block by block, so that temporaries stay bounded by BLOCK):
     # peak memory stays flat in the number of states
     valid = np.empty(n, dtype=np.uint8)
@@ -159,9 +140,11 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
             if ok.any():
                 unique, inverse = np.unique((N0[a:b][ok] > 0.0) @ bits, return_inverse=True)
                 pats[a:b][ok] = np.array([lookup[int(k)] for k in unique], dtype=np.int64)[inverse]
-    layout = A.answer_layout(nc, nr, ne)
-    out = np.empty((n, layout.width))  # one packed row per state (hipeq.solvers._arrays.answer_layout)
-    ints = np.empty((n, A.INT_COLUMNS), dtype=np.int64)
+    layout = system._layout
+    if out is None:
+        out = np.empty((n, layout.width))  # one packed row per state (hipeq.solvers._arrays.answer_layout)
+    if ints is None:
+        ints = np.empty((n, A.INT_COLUMNS), dtype=np.int64)
     bad_ln_k = np.zeros(n if system._ln_K is not None else 0, dtype=bool)
     for a in range(0, n, BLOCK):
         b = min(n, a + BLOCK)
@@ -182,7 +165,40 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
         order = neighbour_order(Tf[a:b], PVf[a:b], block_pats)
         D.solve_many(compiled.arrays, patterns, Tf[a:b], PVf[a:b], N0[a:b], block_pats, ln_k_user, valid[a:b],
                      options, chunk, order, out[a:b], ints[a:b])
+    return out, ints, valid, bad_ln_k
+
+
+def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_volume: bool, method: str,
+                scheme: str, tol: float, max_iterations: int) -> BatchResult:
+    """Body of :meth:`ReactionSystem.equilibrium_batch` (see there); T [K] and value (P [Pa] or V [m3]) are
+    already SI numbers or arrays."""
+    field = "V" if fixed_volume else "P"
+    T_arr = np.asarray(T, dtype=float)
+    PV_arr = np.asarray(value, dtype=float)
+    cols, feed_shapes = _feed_arrays(system, feed)
+    try:
+        shape = np.broadcast_shapes(T_arr.shape, PV_arr.shape, *feed_shapes)
+    except ValueError:
+        raise InputError("T", f"T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} do not "
+                              "broadcast to one shape of states") from None
+    n = int(np.prod(shape)) if shape else 1
+    if n == 0:
+        raise InputError("T", f"no states: T {T_arr.shape}, {field} {PV_arr.shape} and the feed {feed_shapes} "
+                              "broadcast to an empty shape; give at least one value")
+    if n > MAX_STATES:
+        raise InputError("T", f"{n} states in one call is more than {MAX_STATES}; split the work into calls of at "
+                              "most that many states")
+    options = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
+    nc = len(system.species_names)
+    # fresh writeable C-contiguous copies: one compiled signature whatever the caller passed
+    Tf = np.array(np.broadcast_to(T_arr, shape).reshape(n), dtype=np.float64, order="C")
+    PVf = np.array(np.broadcast_to(PV_arr, shape).reshape(n), dtype=np.float64, order="C")
+    N0 = np.zeros((n, nc))
+    for j, arr in cols:
+        N0[:, j] = np.broadcast_to(arr, shape).reshape(n)
+    scalar_feed = all(arr.ndim == 0 for _, arr in cols)
+    out, ints, valid, bad_ln_k = solve_rows(system, Tf, PVf, N0, scalar_feed, options)
     for arr in (out, ints, Tf, PVf, N0):
         arr.flags.writeable = False
     reasons = _InvalidReasons(system.T_min, system.T_max, Tf, PVf, N0, fixed_volume, valid, bad_ln_k)
-    return batch_result(system._info, layout, out, ints, shape, Tf, N0, method, scheme, fixed_volume, reasons)
+    return batch_result(system._info, system._layout, out, ints, shape, Tf, N0, method, scheme, fixed_volume, reasons)

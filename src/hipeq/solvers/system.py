@@ -25,7 +25,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Mapping, Sequence
 from types import MappingProxyType
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -42,6 +42,9 @@ from hipeq.solvers._store import CompiledSystem, PatternStore
 from hipeq.solvers._tables import g0_table
 from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo, scalar_result
 from hipeq.units import to_si
+
+if TYPE_CHECKING:
+    from hipeq.solvers.bound import StateSolver
 
 __all__ = ["ReactionSystem"]
 
@@ -419,6 +422,15 @@ class ReactionSystem:
         T_si = to_si(T, "temperature", "T")
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
         return solve_batch(self, feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations)
+
+    def state_solver(self, method: str = "extent", fixed_volume: bool = False, tol: float = DEFAULT_TOL,
+                     max_iterations: int = 100) -> StateSolver:
+        """A low-overhead solver for loops in other programs: ``solver(T, P_or_V, feed, y_out, status_out)``
+        takes arrays (SI) and fills caller-owned arrays, with the answers and status codes of :meth:`equilibrium`
+        and no result objects (see :class:`hipeq.solvers.bound.StateSolver`; cost in docs/performance.md)."""
+        from hipeq.solvers.bound import StateSolver
+
+        return StateSolver(self, method, fixed_volume, tol, max_iterations)
 
     # ------------------------------------------------------------------------------------------------------
     def with_model(self, **model_options: Any) -> ReactionSystem:
