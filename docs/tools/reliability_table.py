@@ -37,6 +37,7 @@ import numba
 import numpy as np
 
 import hipeq
+from hipeq.solvers import _common as C
 from hipeq.solvers import result as result_module
 
 R = 8.314462618  # J/(mol K), CODATA 2018 (exact)
@@ -54,22 +55,26 @@ SYSTEMS = {
 }
 MODELS = ("ideal", "virial", "lewis-randall", "SRK", "PR", "PR78")
 
-# message fragment -> reason (first match wins; the order puts specific causes before general ones)
-REASONS = (
-    ("ln_k", "user ln K not finite"),
-    ("one phase", "vessel: one phase cannot fill it"),
-    ("floor", "vessel: pressure below the 1e-2 Pa floor"),
-    ("co-volume", "vessel: below the co-volume / above 1e10 Pa"),
-    ("ceiling", "vessel: below the co-volume / above 1e10 Pa"),
-    ("no pressure between", "vessel: no pressure found"),
-    ("iteration limit", "iteration limit"),
-    ("no step along", "stalled: no descent step"),
-    ("no physical state", "model has no state"),
-    ("no root", "model has no state"),
-    ("singular", "singular Newton system"),
-    ("not finite", "non-finite evaluation"),
-    ("invalid input", "invalid input"),
-)
+# the solver's reason code per state (hipeq.solvers._common.REASON_*), else its status, -> a short label
+REASON_LABELS = {
+    C.REASON_BELOW_COVOLUME: "vessel: V at or below the co-volume",
+    C.REASON_ABOVE_CEILING: "vessel: P would exceed 1e10 Pa",
+    C.REASON_BELOW_FLOOR: "vessel: P would fall below 1e-2 Pa",
+    C.REASON_NOT_ONE_PHASE: "vessel: no single phase fills it (a liquid would form)",
+    C.REASON_VIRIAL_RANGE: "virial: |Z - 1| > 0.5",
+    C.REASON_LEWIS_RANDALL_RANGE: "Lewis-Randall: P > 2e8 Pa",
+    C.REASON_NOT_FINITE: "an output not finite",
+    C.REASON_ELEMENTS: "an element balance open",
+    C.REASON_LN_K: "user ln K not finite",
+}
+STATUS_LABELS = {C.MAX_ITERATIONS: "iteration limit", C.STALLED: "stalled: no descent step",
+                 C.NO_PHYSICAL_STATE: "model has no state", C.SINGULAR: "singular Newton system",
+                 C.PRESSURE_NOT_FOUND: "vessel: no pressure found", C.INVALID_INPUT: "invalid input"}
+
+
+def reason(status: int, code: int) -> str:
+    """Short label of a failed state's cause, from its reason code or else its status."""
+    return REASON_LABELS.get(code) or STATUS_LABELS.get(status, f"status {status}")
 
 
 def status_names() -> tuple[str, ...]:
@@ -89,15 +94,6 @@ def element_tolerances() -> tuple[float, float, str]:
         return 1e-10, 1e-15, ("documented values (hipeq.solvers.result.ELEMENT_RTOL / ELEMENT_ATOL not found in "
                               "this version)")
     return float(rtol), float(atol), "hipeq.solvers.result.ELEMENT_RTOL / ELEMENT_ATOL"
-
-
-def reason(message: str) -> str:
-    low = message.lower()
-    for fragment, name in REASONS:
-        if fragment in low:
-            return name
-    head = message.split(";")[0].strip()
-    return (head[:60] + "...") if len(head) > 60 else (head or "(empty message)")
 
 
 # --------------------------------------------------------------------------------------------------------
@@ -234,12 +230,9 @@ def run_row(name: str, eos: str, sealed: bool, n: int, subsample: int, method: s
     for code, count in zip(*np.unique(status[~ok], return_counts=True)):
         label = names_of_status[code] if 0 <= code < len(names_of_status) else f"code {code} (undocumented)"
         row.by_status[label] += int(count)
+    reasons = np.asarray(batch.reason).reshape(-1)
     for k in np.flatnonzero(~ok):
-        try:
-            text = batch.message(int(k))
-        except Exception as err:  # noqa: BLE001
-            text = f"message raised {type(err).__name__}"
-        row.by_reason[reason(text)] += 1
+        row.by_reason[reason(int(status[k]), int(reasons[k]))] += 1
     checks = failed_checks(batch, species, eos, feeds, PV, sealed, rtol, atol)
     any_bad = np.zeros(n, dtype=bool)
     for check, mask in checks.items():

@@ -25,7 +25,7 @@ n_T Z R T / P to the given V, within P_FLOOR <= P <= P_CEILING (bracketed once t
 changed; bisection otherwise); a bracket that closes on a jump of the volume means that no single phase fills
 the vessel at that density.
 
-A converged answer is checked before it is reported: every element balance closed (``elements_closed``), every
+A converged answer is checked before it is reported: every element balance closed (``element_residuals``), every
 output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
 Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
 allocated once per chunk (``make_work``); answers are written as one packed float row and one integer row per
@@ -51,7 +51,7 @@ from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_BI,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
                                    REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, S_AUX, S_D, S_LNK, S_RHS, S_SCALE,
                                    S_XI, S_XI_PREV, S_XI_START, SINGULAR, SM_L, adjust_g0, element_residuals,
-                                   elements_closed, g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
+                                   g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
                                    IV_PIV)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
@@ -393,7 +393,8 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
     if not finite:
         ints[STATUS] = SINGULAR
         ints[REASON] = REASON_NOT_FINITE
-    elif not elements_closed(A, row[layout.amounts:layout.amounts + nc], n0):
+    elif not element_residuals(A, row[layout.amounts:layout.amounts + nc], n0,
+                               row[layout.element_residuals:layout.element_residuals + A.shape[0]]):
         ints[STATUS] = BALANCE_NOT_CLOSED
         ints[REASON] = REASON_ELEMENTS
     elif code == MODEL_VIRIAL and abs(row[layout.Z] - 1.0) > VIRIAL_MAX_DEPARTURE:
