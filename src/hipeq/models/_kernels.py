@@ -8,7 +8,8 @@ Two steps per state, so that solvers at fixed temperature pay the temperature-de
 1. ``tdep_into(code, T, comp, consts, kmat, aij, bi, daij, dbi)`` fills the temperature-dependent
    parameters: for the cubic and Lewis-Randall models ``aij = (1 - kij) sqrt(a_i a_j)`` [Pa m6/mol2] and
    ``bi`` [m3/mol]; for the virial model ``aij = B_ij`` [m3/mol]; and their temperature derivatives.
-2. ``ln_phi_tp`` / ``ln_phi_dn_tp`` / ``ln_phi_dT_tp`` / ``residual_tp`` evaluate a state (T, P, y).
+2. ``ln_phi_tp``, ``ln_phi_hinted_tp``, ``ln_phi_dn_tp``, ``ln_phi_reduced_tp`` (for the solvers) and
+   ``residual_dT_tp`` (with temperature derivatives and residual properties) evaluate a state (T, P, y).
 
 Generic two-constant cubic (Michelsen & Mollerup 2007, "Thermodynamic Models: Fundamentals and Computational
 Aspects", 2nd ed., ch. 3):

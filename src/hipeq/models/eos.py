@@ -130,8 +130,10 @@ class CompiledModel:
     """A model ready for the compiled kernels (contract in DEVELOPERS.md) plus its provenance.
 
     ``code`` (MODEL_* of ``hipeq.models._kernels``), ``comp`` (nc, 7) float64 columns TC [K], PC [Pa],
-    OMEGA [-], M_ALPHA [-], QMASS [g/mol, 0 = no quantum correction], VC [m3/mol], ZC [-]; ``consts`` (4,)
-    delta1, delta2, Omega_a, Omega_b; ``kmat`` (nc, nc) symmetric k_ij. Arrays are read-only.
+    OMEGA [-], M_ALPHA [-], QMASS [g/mol, 0 = no quantum correction], VC [m3/mol], ZC [-]; ``consts``
+    delta1, delta2, Omega_a, Omega_b, then an optional tail (volume translation c_i, E-PPR78 group constants;
+    layout at ``HAS_SHIFT`` in ``hipeq.models._kernels``: length 4 means no tail); ``kmat`` (nc, nc) symmetric
+    k_ij. Arrays are read-only.
     """
 
     code: int
