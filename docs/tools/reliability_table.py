@@ -65,7 +65,6 @@ REASON_LABELS = {
     C.REASON_LEWIS_RANDALL_RANGE: "Lewis-Randall: P > 2e8 Pa",
     C.REASON_NOT_FINITE: "an output not finite",
     C.REASON_ELEMENTS: "an element balance open",
-    C.REASON_LN_K: "user ln K not finite",
 }
 STATUS_LABELS = {C.MAX_ITERATIONS: "iteration limit", C.STALLED: "stalled: no descent step",
                  C.NO_PHYSICAL_STATE: "model has no state", C.SINGULAR: "singular Newton system",

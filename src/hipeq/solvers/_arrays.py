@@ -12,7 +12,7 @@ fields by name, so a kernel never needs to know a tuple position or a row index 
   (``answer_layout``), used by the kernels that write the rows and by the Python face that reads them.
 
 Adding an array to a system: add a field to :class:`SystemArrays`, fill it in
-``hipeq.solvers._store.system_arrays``, read it by name in the kernel (DEVELOPERS.md, "Adding to the core").
+``ReactionSystem.__init__`` (hipeq.solvers.system), read it by name in the kernel (DEVELOPERS.md, "Adding to the core").
 """
 from __future__ import annotations
 

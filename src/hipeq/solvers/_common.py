@@ -42,7 +42,6 @@ REASON_VIRIAL_RANGE = 5  # truncated virial with |Z - 1| above its limit
 REASON_LEWIS_RANDALL_RANGE = 6  # Lewis-Randall rule above its pressure limit
 REASON_NOT_FINITE = 7  # an output was not finite
 REASON_ELEMENTS = 8  # an element balance did not close
-REASON_LN_K = 9  # the user's ln K was not finite at this T
 
 # Element balances at convergence: |sum_i a_ei n_i - b_e| <= ELEMENT_RTOL b_e + ELEMENT_ATOL sum_e b_e
 ELEMENT_RTOL = 1e-10

@@ -94,7 +94,6 @@ REASON_TEXTS = {
     C.REASON_NOT_FINITE: "an output was not finite",
     C.REASON_ELEMENTS: f"an element balance is off by more than {ELEMENT_RTOL:g} of its feed amount (floor "
                        f"{ELEMENT_ATOL:g} of the total feed atoms)",
-    C.REASON_LN_K: "the ln_K callable returned a value that is not finite at this temperature",
 }
 ROOT_NAMES = {-1: "none", 0: "single", 1: "gas-like", 2: "liquid-like"}
 
@@ -288,7 +287,7 @@ class _Common:
 
     _PUBLIC = ("T", "P", "V", "Z", "species", "reactions", "amounts", "y", "phi", "conversion", "extents", "ln_K",
                "K", "K_phi", "K_y", "residuals", "element_residuals", "iterations", "outer_iterations", "converged",
-               "status", "method", "method_requested", "scheme", "root", "liquid_like", "eos", "kij",
+               "status", "reason", "method", "method_requested", "scheme", "root", "liquid_like", "G_RT", "eos", "kij",
                "zero_kij_pairs", "kij_sources", "K_source", "data_sources", "notes", "standard_state")
 
     def to_dict(self) -> dict[str, Any]:
