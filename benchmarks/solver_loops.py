@@ -116,7 +116,7 @@ def solve_state_arguments(many_args: tuple) -> dict | None:
 
     from hipeq.solvers import _driver as D
 
-    many = list(inspect.signature(D.solve_many.py_func).parameters)
+    many = list(inspect.signature(getattr(D.solve_many, "py_func", D.solve_many)).parameters)
     one = list(inspect.signature(D.solve_state.py_func).parameters)
     if "T" not in many or one != SOLVE_STATE_PARAMETERS:
         return None

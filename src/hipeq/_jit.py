@@ -52,3 +52,10 @@ def entry(fn: F) -> F:
 def parallel_entry(fn: F) -> F:
     """As :func:`entry`, with ``parallel=True``: ``numba.prange`` loops run on numba's thread pool."""
     return njit(cache=True, parallel=True, error_model=ERROR_MODEL)(fn)
+
+
+def threaded_entry(fn: F) -> F:
+    """As :func:`entry`, without the GIL (``nogil=True``): for entry points that Python threads run side by side
+    (``hipeq.solvers._driver.solve_many``). Unlike :func:`parallel_entry` it compiles its callees only once more
+    (numba's parallel lowering builds a kernel and a wrapper that each recompile everything they call)."""
+    return njit(cache=True, nogil=True, error_model=ERROR_MODEL)(fn)

@@ -14,9 +14,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import njit
 
-from hipeq._jit import entry, kernel
+from hipeq._jit import entry, inline_kernel, kernel
 from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_reduced_tp
 
 # ---------------------------------------------------------------------------------------------------------
@@ -242,7 +241,7 @@ def adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k_tab):
 # ---------------------------------------------------------------------------------------------------------
 # evaluation of a composition
 # ---------------------------------------------------------------------------------------------------------
-@njit(cache=True, inline='always')
+@inline_kernel
 def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, W, neff, M, scratch):
     """Mole fractions, ln phi (per ``mode``) and mu_i/RT of the active species at amounts n.
 

@@ -34,16 +34,18 @@ state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
 from __future__ import annotations
 
 import math
+import threading
+from concurrent.futures import ThreadPoolExecutor
 
+import numba
 import numpy as np
-from numba import prange
 
-from hipeq._jit import entry, inline_kernel, kernel, parallel_entry
+from hipeq._jit import inline_kernel, kernel, threaded_entry
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
 from hipeq.models.inputs import P_MAX
 from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, METHOD, METHOD_EXTENT, METHOD_GIBBS, OUTER,
-                                   REASON, ROOT, STATUS, answer_layout)
+                                   REASON, ROOT, STATUS, Options, PatternArrays, SystemArrays, answer_layout)
 from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU,
                                    F_N, F_N0_PREV, F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
                                    OUTSIDE_MODEL_RANGE, PRESSURE_NOT_FOUND, REASON_ABOVE_CEILING,
@@ -567,18 +569,36 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     return True
 
 
-@entry
-def solve_one(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, row, ints):
-    """One state (the scalar path): answers in ``row`` (float, ``answer_layout``) and ``ints`` (INT_COLUMNS)."""
-    work = make_work(n0.shape[0], system.nu.shape[0], max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
-    solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, True, False, work, row, ints)
+def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float, n0: np.ndarray, pat: int,
+              ln_k_user: np.ndarray, guess: np.ndarray, opts: Options, row: np.ndarray, ints: np.ndarray) -> None:
+    """One state (the scalar path): answers in ``row`` (float, ``answer_layout``) and ``ints`` (INT_COLUMNS).
+
+    Solved as a chunk of one state by the compiled ``_solve_chunk``, called from here (Python) with arrays of the
+    types ``solve_many`` hands it: the scalar and the batch path then share one compiled solver. (``solve_state``
+    is compiled into its caller, and compiling it was most of a first call's time; a compiled wrapper around
+    the chunk would compile the whole solver a second time, as numba optimises each function together with
+    everything it calls.) The first state of a chunk is solved exactly as a lone state: new temperature, no
+    warm start."""
+    nc = n0.shape[0]
+    nr = system.nu.shape[0]
+    work = make_work(nc, nr, max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
+    # fresh writeable C-ordered float64 arrays, as solve_many's chunks are: another array type would compile the
+    # solver once more
+    one_ln_k = np.array(ln_k_user, dtype=np.float64, ndmin=2) if ln_k_user.shape[0] > 0 else np.empty((0, nr))
+    guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else np.empty((0, 0))
+    rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
+    ints_one = ints.reshape(1, ints.shape[0])
+    _solve_chunk(system, patterns, np.array([T], dtype=np.float64), np.array([PV], dtype=np.float64),
+                 np.array(n0, dtype=np.float64, ndmin=2), np.array([pat], dtype=np.int64), one_ln_k, guesses,
+                 np.ones(1, dtype=np.uint8), opts, rows, ints_one, work)
 
 
 @kernel
-def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, rows, ints, work):
+def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
     buffers, each warm-started from the previous converged one of the same pattern where that is safe (see the
-    module docstring); the answers go to ``rows`` and ``ints``."""
+    module docstring); the answers go to ``rows`` and ``ints``. ``ln_k_user`` and ``guesses`` (the caller's
+    start, used when ``opts.guess``) have one row per state or none."""
     nc = N0.shape[1]
     layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
     empty = T[0:0]
@@ -606,26 +626,69 @@ def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, rows
             continue
         pat = pats[k]
         user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
+        guess = guesses[k] if guesses.shape[0] > 0 else empty
         use_warm = warm and pat == last_pat and opts.warm
-        warm = solve_state(system, patterns, T[k], PV[k], N0[k], pat, user, empty, opts, T[k] != last_T, use_warm,
+        warm = solve_state(system, patterns, T[k], PV[k], N0[k], pat, user, guess, opts, T[k] != last_T, use_warm,
                            work, row, ints[k])
         last_T = T[k]
         last_pat = pat
 
 
-@parallel_entry
-def solve_many(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints):
+def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV: np.ndarray, N0: np.ndarray,
+               pats: np.ndarray, ln_k_user: np.ndarray, valid: np.ndarray, opts: Options, chunk: int,
+               order: np.ndarray, out: np.ndarray, out_ints: np.ndarray) -> None:
     """Many states (T[k], PV[k], N0[k]) in parallel chunks of ``chunk`` consecutive entries of ``order`` (a
     permutation that puts similar states next to each other), warm-started along a chunk where that is safe.
     States with valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per state or a
     single one for all; ``ln_k_user`` has shape (n, nr) or (0, nr). ``out`` (n, width) receives one packed float
-    row per state (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row."""
+    row per state (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row.
+
+    The chunks are split into ``numba.get_num_threads()`` contiguous ranges (as a ``prange`` loop schedules
+    them), each solved by ``_solve_chunks`` on a thread of its own (compiled without the GIL). Not a ``prange``
+    loop: numba's parallel lowering optimised and compiled the whole solver three more times, 30 s of the first
+    batch call."""
+    n_chunks = -(-T.shape[0] // chunk)
+    threads = max(1, min(numba.get_num_threads(), n_chunks))
+    args = (system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints)
+    if threads == 1:
+        _solve_chunks(*args, 0, n_chunks)
+        return
+    bounds = [n_chunks * t // threads for t in range(threads + 1)]
+    pool = _thread_pool(threads)
+    done = [pool.submit(_solve_chunks, *args, bounds[t], bounds[t + 1]) for t in range(1, threads)]
+    _solve_chunks(*args, bounds[0], bounds[1])  # the calling thread takes the first range
+    for job in done:
+        job.result()
+
+
+_pool: ThreadPoolExecutor | None = None
+_pool_workers = 0
+_pool_lock = threading.Lock()
+
+
+def _thread_pool(threads: int) -> ThreadPoolExecutor:
+    """A process-wide pool with at least ``threads - 1`` workers (the calling thread is the other one)."""
+    global _pool, _pool_workers
+    with _pool_lock:
+        if _pool is None or _pool_workers < threads - 1:
+            if _pool is not None:
+                _pool.shutdown(wait=False)
+            _pool_workers = threads - 1
+            _pool = ThreadPoolExecutor(max_workers=_pool_workers, thread_name_prefix="hipeq")
+        return _pool
+
+
+@threaded_entry
+def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints, first_chunk,
+                  last_chunk):
+    """Chunks ``first_chunk`` to ``last_chunk - 1`` of ``solve_many``, one after the other, each with work buffers
+    of its own (so that its answers do not depend on which thread solved which chunk)."""
     n = T.shape[0]
     nc = N0.shape[1]
     nr = system.nu.shape[0]
-    n_chunks = (n + chunk - 1) // chunk
     width = out.shape[1]
-    for c in prange(n_chunks):
+    no_guesses = np.empty((0, 0))  # a batch starts from its own answers, never from a caller's guess
+    for c in range(first_chunk, last_chunk):
         first = c * chunk
         m = min(n, first + chunk) - first
         work = make_work(nc, nr, max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
@@ -640,7 +703,7 @@ def solve_many(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk,
         rows = np.empty((m, width))
         ints = np.empty((m, INT_COLUMNS), dtype=np.int64)
         _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, validl, opts, rows, ints, work)
+        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, work)
         _scatter(order[first:first + m], rows, ints, out, out_ints)
 
 

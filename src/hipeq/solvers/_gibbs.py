@@ -224,8 +224,10 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     jac = J[J_JAC]
     scratch = F[F_SCRATCH:F_SCRATCH + 3]
     first = WITH_JACOBIAN if coupled else WITH_PHI
-    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, jac, 0,
-                               jac, scratch)
+    # W = Nb, neff = n_null: the reduced matrix is never asked for here (no WITH_REDUCED mode), but arguments of
+    # the extent solver's types let both solvers share one compiled model dispatcher (a literal 0 compiled another)
+    n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, Nb,
+                               n_null, jac, scratch)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
     if not _fit_potentials(Q, neq, n, mu, active, S, SM):
@@ -241,7 +243,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
         rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
-                                       jac, mu, jac, 0, jac, scratch)
+                                       jac, mu, Nb, n_null, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
@@ -269,7 +271,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
         _update(neq, n, n_t, m, S, KV, IV)
         iterations += 1
         n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
-                                           mu, jac, 0, jac, scratch)
+                                           mu, Nb, n_null, jac, scratch)
         if coupled:
             z = z_new
             root = root_new
