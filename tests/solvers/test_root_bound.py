@@ -13,6 +13,7 @@ import pytest
 
 import hipeq
 from hipeq.models._kernels import OMEGA_A, OMEGA_B, R, tparams_into
+from hipeq.solvers._common import MAX_VERTICES
 from hipeq.solvers._driver import several_roots_possible
 
 SYSTEMS = {
@@ -33,8 +34,9 @@ def _bound(system: hipeq.ReactionSystem, T: float, n0: np.ndarray) -> tuple[bool
     big = nc + arrays.elements.shape[0] + 1
     flag = several_roots_possible(arrays.model_code, T, aij, bi, arrays.model_constants,
                                   patterns.gibbs_active[pat], n0, patterns.gibbs_null[pat],
-                                  int(patterns.gibbs_null_rank[pat]), np.zeros((big, big)), np.zeros(big),
-                                  np.zeros(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64))
+                                  int(patterns.gibbs_null_rank[pat]), pat, np.zeros((big, big)), np.zeros(big),
+                                  np.zeros(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64),
+                                  np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
     null = patterns.gibbs_null[pat][:, :int(patterns.gibbs_null_rank[pat])]
     return bool(flag), aij, bi, null
 
@@ -82,3 +84,28 @@ def test_bound_is_true_for_a_condensable_feed() -> None:
     feed = np.array([.0244, 1e-12, .0265, .212, .0272, 1e-12, .0227])
     flag, *_ = _bound(system, 324.66, feed)
     assert flag
+
+
+def test_kept_vertices_give_the_fresh_answer_at_every_temperature() -> None:
+    """The vertices are kept per feed and pattern between states (a chunk pays the enumeration once); reused for
+    other temperatures they must give what a fresh enumeration gives."""
+    system = hipeq.ReactionSystem(["CO", "CO2", "H2", "H2O", "CH3OH", "CH4", "N2"], eos="PR")
+    arrays = system.compiled.arrays
+    n0 = np.array([0.1, 0.3, 0.4, 0.05, 0.1, 0.0, 0.05])
+    key = int(sum(1 << i for i in range(7) if n0[i] > 0))
+    patterns, (pat,), _ = system.compiled.patterns_for([key])
+    nc, big = 7, 7 + arrays.elements.shape[0] + 1
+    kept = (np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+    answers = set()
+    for T in np.linspace(300.0, 900.0, 25):
+        aij, bi = np.zeros((nc, nc)), np.zeros(nc)
+        tparams_into(arrays.model_code, T, arrays.components, arrays.model_constants, arrays.kij, aij, bi,
+                     np.zeros((nc, nc)), np.zeros(nc))
+        args = (arrays.model_code, T, aij, bi, arrays.model_constants, patterns.gibbs_active[pat], n0,
+                patterns.gibbs_null[pat], int(patterns.gibbs_null_rank[pat]), pat, np.zeros((big, big)),
+                np.zeros(big), np.zeros(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64))
+        reused = several_roots_possible(*args, *kept)
+        fresh = several_roots_possible(*args, np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+        assert reused == fresh, T
+        answers.add(bool(fresh))
+    assert answers == {True, False} and kept[1][1] == 1  # both sides met; the vertices were kept

@@ -42,6 +42,8 @@ REASON_LEWIS_RANDALL_RANGE = 6  # Lewis-Randall rule above its pressure limit
 REASON_NOT_FINITE = 7  # an output was not finite
 REASON_ELEMENTS = 8  # an element balance did not close
 
+MAX_VERTICES = 256  # vertices of a feed's feasible polytope kept per chunk (several_roots_possible)
+
 # Element balances at convergence: |sum_i a_ei n_i - b_e| <= ELEMENT_RTOL b_e + ELEMENT_ATOL sum_e b_e
 ELEMENT_RTOL = 1e-10
 ELEMENT_ATOL = 1e-15
@@ -79,11 +81,14 @@ IV_IDX, IV_PIV = range(2)
 
 @entry
 def make_work(nc, nr, ne):
-    """Work buffers of one chunk of states: (F, J, S, SM, M, KV, IV), see the row constants above."""
+    """Work buffers of one chunk of states: (F, J, S, SM, M, KV, IV, VX, VI), see the row constants above; VX
+    (MAX_VERTICES + 1, nc) and VI (3,) keep the vertices of the last feed's feasible polytope (row 0: that feed;
+    VI: count, valid, pattern), see ``hipeq.solvers._driver.several_roots_possible``."""
     k = max(nr, ne, 1)
     big = nc + ne + 1
     return (np.zeros((N_F_ROWS, nc)), np.zeros((4, nc, nc)), np.zeros((N_S_ROWS, k)), np.zeros((4, k, k)),
-            np.zeros((big, big)), np.zeros((2, big)), np.zeros((2, big), dtype=np.int64))
+            np.zeros((big, big)), np.zeros((2, big)), np.zeros((2, big), dtype=np.int64),
+            np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
 
 
 # ---------------------------------------------------------------------------------------------------------

@@ -46,14 +46,14 @@ from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODE
 from hipeq.models.inputs import P_MAX
 from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, METHOD, METHOD_EXTENT, METHOD_GIBBS, OUTER,
                                    REASON, ROOT, STATUS, Options, PatternArrays, SystemArrays, answer_layout)
-from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU,
+from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_SCRATCH, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU,
                                    F_N, F_N0_PREV, F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
                                    OUTSIDE_MODEL_RANGE, PRESSURE_NOT_FOUND, REASON_ABOVE_CEILING,
                                    REASON_BELOW_COVOLUME, REASON_BELOW_FLOOR, REASON_ELEMENTS,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
                                    REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, S_AUX, S_D, S_LNK, S_RHS, S_SCALE,
                                    S_XI, S_XI_PREV, S_XI_START, SINGULAR, SM_L, adjust_g0, element_residuals,
-                                   g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
+                                   MAX_VERTICES, g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
                                    IV_PIV)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
@@ -71,14 +71,13 @@ VIRIAL_MAX_DEPARTURE = 0.5
 LEWIS_RANDALL_P_MAX = 2e8  # [Pa]
 # deterministic cold starts n0 + eps (p - f): eps as fractions of the largest step that keeps n >= 0
 COLD_FRACTIONS = (0.5, 0.02, 0.98)
-MAX_VERTEX_SETS = 5000.0  # several_roots_possible: beyond this many candidate vertices, assume several roots
 START_GUESS = 0
 START_WARM = 1
 START_COLD = 2
 
 
 @kernel
-def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, M, rhs, x, idx, piv):
+def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, M, rhs, x, idx, piv, VX, VI):
     """True when the cubic could have three volume roots at T [K] for some composition the feed ``n0`` can reach
     (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the active
     species).
@@ -88,9 +87,11 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, M
     cubic with fixed a and b is monotonic (one volume root at every P) when a / (b R T) < Omega_a / Omega_b (its
     critical condition; Michelsen & Mollerup 2007, ch. 3). So three roots need sum_i n_i (c r_i - L) >= 0 with
     r_i = a_i / (b_i R T) and L = Omega_a / Omega_b; that linear function is largest at a vertex of the feasible
-    polytope, and the vertices (n_null of the amounts at zero) are enumerated; past MAX_VERTEX_SETS sets of
-    species the answer is True (the safe side). Always False for the other models (one root per state).
-    ``M``, ``rhs``, ``x``, ``idx``, ``piv`` are scratch."""
+    polytope. The vertices (n_null of the amounts at zero) depend on the feed only, not on T: they are enumerated
+    once per feed and pattern and kept in VX / VI (row 0 of VX the feed; VI = count, valid, pattern), so a chunk
+    of states with one feed pays the enumeration once. Past MAX_VERTICES candidate sets the answer is True (the
+    safe side). Always False for the other models (one root per state). ``M``, ``rhs``, ``x``, ``idx``,
+    ``piv`` are scratch."""
     if code != MODEL_CUBIC:
         return False
     nc = bi.shape[0]
@@ -102,36 +103,63 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, M
             for j in range(i + 1, nc):
                 if active[j] and aij[j, j] > 0.0:
                     c = max(c, aij[i, j] / math.sqrt(aij[i, i] * aij[j, j]))
-    for i in range(nc):
-        if active[i] and bi[i] > 0.0:
-            top = max(top, c * aij[i, i] / (bi[i] * R * T) - limit)
-    if top < 0.0:
-        return False  # no active species is below its (kij-widened) critical temperature
     feed = 0.0
     for i in range(nc):
         if active[i] and bi[i] > 0.0:
-            feed += n0[i] * (c * aij[i, i] / (bi[i] * R * T) - limit)
+            w = c * aij[i, i] / (bi[i] * R * T) - limit
+            top = max(top, w)
+            feed += n0[i] * w
+    if top < 0.0:
+        return False  # no active species is below its (kij-widened) critical temperature
     if feed >= 0.0 or n_null == 0:
         return feed >= 0.0
-    # every set of n_null of the m active species (lexicographic positions in ``idx``): a candidate vertex
+    same = VI[1] == 1 and VI[2] == pat
+    if same:
+        for i in range(nc):
+            if VX[0, i] != n0[i]:
+                same = False
+                break
+    if not same and not _polytope_vertices(active, n0, null, n_null, M, rhs, x, idx, piv, VX, VI):
+        return True  # too many candidate vertices to enumerate: the safe side
+    VI[2] = pat
+    for v in range(1, VI[0] + 1):
+        value = 0.0
+        for i in range(nc):
+            if active[i] and bi[i] > 0.0:
+                value += VX[v, i] * (c * aij[i, i] / (bi[i] * R * T) - limit)
+        if value >= 0.0:
+            return True
+    return False
+
+
+@kernel
+def _polytope_vertices(active, n0, null, n_null, M, rhs, x, idx, piv, VX, VI):
+    """The vertices of {n = n0 + null t >= 0} (every set of n_null active species at zero whose solution is
+    feasible) into VX[1:], the feed into VX[0], their count into VI[0] and VI[1] = 1; False (VI[1] = 0) when
+    there are more candidate sets than MAX_VERTICES."""
+    nc = n0.shape[0]
+    VI[1] = 0
+    VI[0] = 0
     m = 0
     for i in range(nc):
         if active[i]:
             m += 1
     if n_null > m:
-        return True
+        return False
     sets = 1.0
     for k in range(n_null):
         sets = sets * (m - k) / (k + 1)
-    if sets > MAX_VERTEX_SETS:
-        return True
+    if sets > MAX_VERTICES:
+        return False
     scale = 0.0
     for i in range(nc):
         scale += n0[i]
+        VX[0, i] = n0[i]
+    count = 0
     for k in range(n_null):
         idx[k] = k
     while True:
-        # solve null[S, :] t = -n0[S] for the set S, then n = n0 + null t
+        # solve null[S, :] t = -n0[S] for the set S (positions ``idx`` among the active species)
         a = 0
         position = 0
         for i in range(nc):
@@ -145,29 +173,27 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, M
             position += 1
         if lu_solve(M, rhs, n_null, x, piv):
             feasible = True
-            value = 0.0
             for i in range(nc):
-                if not active[i]:
-                    continue
                 v = n0[i]
                 for b in range(n_null):
                     v += null[i, b] * x[b]
-                if v < -1e-12 * scale:
+                if active[i] and v < -1e-12 * scale:
                     feasible = False
                     break
-                if bi[i] > 0.0:
-                    value += max(v, 0.0) * (c * aij[i, i] / (bi[i] * R * T) - limit)
-            if feasible and value >= 0.0:
-                return True
-        # next set
+                VX[count + 1, i] = max(v, 0.0) if active[i] else 0.0
+            if feasible:
+                count += 1
         k = n_null - 1
         while k >= 0 and idx[k] == m - n_null + k:
             k -= 1
         if k < 0:
-            return False
+            break
         idx[k] += 1
         for j in range(k + 1, n_null):
             idx[j] = idx[j - 1] + 1
+    VI[0] = count
+    VI[1] = 1
+    return True
 
 
 @kernel
@@ -417,7 +443,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     parameters; ``warm``: the work buffers hold a converged previous state of the same pattern (rows F_N_PREV,
     F_N0_PREV, S_XI_PREV). Returns True when the answer can warm-start the next state. Compiled into its callers
     (one call site each)."""
-    F, J, S, SM, M, KV, IV = work
+    F, J, S, SM, M, KV, IV, VX, VI = work
     nc = n0.shape[0]
     nu = system.nu
     nr = nu.shape[0]
@@ -446,8 +472,8 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     for i in range(nc):
         n_feed += n0[i]
     ambiguous = several_roots_possible(code, T, J[J_AIJ], F[F_BI], consts, patterns.gibbs_active[pat], n0,
-                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], M, KV[KV_RHS],
-                                       KV[KV_SOL], IV[IV_IDX], IV[IV_PIV])
+                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, M, KV[KV_RHS],
+                                       KV[KV_SOL], IV[IV_IDX], IV[IV_PIV], VX, VI)
     fixed_volume = opts.fixed_volume
     recorded = False
     total_iterations = 0
@@ -581,16 +607,40 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     warm start."""
     nc = n0.shape[0]
     nr = system.nu.shape[0]
-    work = make_work(nc, nr, max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
-    # fresh writeable C-ordered float64 arrays, as solve_many's chunks are: another array type would compile the
-    # solver once more
-    one_ln_k = np.array(ln_k_user, dtype=np.float64, ndmin=2) if ln_k_user.shape[0] > 0 else np.empty((0, nr))
-    guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else np.empty((0, 0))
+    k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
+    work, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
+    work[0][F_SCRATCH + 2, 0] = 0.0  # no cubic root carried over from this thread's previous call: as if alone
+    work[8][1] = 0  # nor polytope vertices (they belong to one system's patterns)
+    one_T[0] = T
+    one_PV[0] = PV
+    one_n0[0] = n0
+    one_pat[0] = pat
+    # writeable C-ordered float64 arrays, as solve_many's chunks are: another array type would compile the solver
+    # once more
+    one_ln_k = np.array(ln_k_user, dtype=np.float64, ndmin=2) if ln_k_user.shape[0] > 0 else no_ln_k
+    guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else no_guess
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
-    _solve_chunk(system, patterns, np.array([T], dtype=np.float64), np.array([PV], dtype=np.float64),
-                 np.array(n0, dtype=np.float64, ndmin=2), np.array([pat], dtype=np.int64), one_ln_k, guesses,
-                 np.ones(1, dtype=np.uint8), opts, rows, ints_one, work)
+    _solve_chunk(system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, rows, ints_one,
+                 work)
+
+
+_scalar = threading.local()
+
+
+def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
+    """Work buffers and one-state input arrays of this thread for systems of this size, kept between scalar calls
+    (allocating them cost a few microseconds of a ~20 us call). Only the inputs, the cubic root's start and the
+    kept polytope vertices are read before being written, and ``solve_one`` resets them."""
+    cache = getattr(_scalar, "buffers", None)
+    if cache is None:
+        cache = _scalar.buffers = {}
+    found = cache.get((nc, nr, k))
+    if found is None:
+        found = (make_work(nc, nr, k), np.empty(1), np.empty(1), np.empty((1, nc)), np.empty(1, dtype=np.int64),
+                 np.ones(1, dtype=np.uint8), np.empty((0, nr)), np.empty((0, 0)))
+        cache[(nc, nr, k)] = found
+    return found
 
 
 @kernel
