@@ -11,7 +11,8 @@ differs from the previous state of the chunk. Then the equilibrium is solved fro
   virial and the Lewis-Randall rule), the state has one stationary point in practice, and the start is the
   previous converged state of the chunk when the pattern of zero feeds is the same (a warm start, moved by one
   predicted Newton step for the change of T and P, ``predict_start``), else an interior point (a cold start); a
-  failed warm start is retried cold;
+  failed warm start is retried cold (the truncated virial always starts cold: it has regions with no physical
+  state, which a neighbour's answer can lead around and the state's own starts cannot);
 - otherwise (a species could condense) several stationary points may exist, and the state is solved from the
   deterministic cold starts of ``COLD_FRACTIONS`` and the converged answer of lowest Gibbs energy (Helmholtz
   energy in a sealed vessel) is kept, whatever the rest of the batch.
@@ -495,7 +496,9 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
         special = START_COLD
         if phase == 0 and opts.guess:
             special = START_GUESS
-        elif phase == 0 and warm and not ambiguous:
+        elif phase == 0 and warm and not ambiguous and code != MODEL_VIRIAL:
+            # (the truncated virial has regions with no physical state: a warm start from a neighbour can reach
+            # an answer that the state's own cold starts cannot, so it always starts cold, as when alone)
             special = START_WARM
         first_cold = 0 if special == START_COLD else 1
         # every cold start where several stationary points may exist; elsewhere the next cold start only when

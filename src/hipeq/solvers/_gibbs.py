@@ -47,26 +47,33 @@ MAX_POLISH = 3
 
 @inline_kernel
 def _fit_potentials(Q, neq, n, mu, active, S, SM):
-    """Element potentials by weighted least squares: min sum_i n_i (mu_i - sum_e Q_ei lambda_e)^2."""
+    """Element potentials by weighted least squares, min sum_i w_i (mu_i - sum_e Q_ei lambda_e)^2 with w_i = n_i;
+    when that normal matrix is singular to working precision (an element carried only by 1e-12 mol beside
+    9 mol of a species carrying the others makes two rows nearly parallel in that weighting), with w_i = 1 on the
+    active species, whose normal matrix Q Q^T is regular (independent rows). Only a start for the Newton
+    iteration, which corrects the potentials."""
+    if neq == 0:
+        return True
     nc = n.shape[0]
     H = SM[SM_H]
     rhs = S[S_RHS]
-    for e in range(neq):
-        v = 0.0
-        for i in range(nc):
-            if active[i]:
-                v += Q[e, i] * n[i] * mu[i]
-        rhs[e] = v
-        for f in range(e + 1):
+    for weighted in (True, False):
+        for e in range(neq):
             v = 0.0
             for i in range(nc):
                 if active[i]:
-                    v += Q[e, i] * Q[f, i] * n[i]
-            H[e, f] = v
-            H[f, e] = v
-    if neq == 0:
-        return True
-    return cholesky_solve(H, rhs, neq, S[S_LAM], SM[SM_L], S[S_SCALE])
+                    v += Q[e, i] * (n[i] if weighted else 1.0) * mu[i]
+            rhs[e] = v
+            for f in range(e + 1):
+                v = 0.0
+                for i in range(nc):
+                    if active[i]:
+                        v += Q[e, i] * Q[f, i] * (n[i] if weighted else 1.0)
+                H[e, f] = v
+                H[f, e] = v
+        if cholesky_solve(H, rhs, neq, S[S_LAM], SM[SM_L], S[S_SCALE]):
+            return True
+    return False
 
 
 @inline_kernel
