@@ -401,7 +401,7 @@ def ammonia() -> hipeq.ReactionSystem:
     return hipeq.ReactionSystem(AMMONIA, eos="PR")
 
 
-def _same(a, b) -> None:
+def _assert_same(a, b) -> None:
     assert isinstance(a, hipeq.EquilibriumResult) and isinstance(b, hipeq.EquilibriumResult)
     assert a.status == b.status == 0
     assert a.T == pytest.approx(b.T, rel=1e-14) and a.P == pytest.approx(b.P, rel=1e-12)
@@ -411,30 +411,30 @@ def _same(a, b) -> None:
 # unit factors: BIPM SI Brochure, 9th ed. (2019): T/K = t/degC + 273.15; 1 bar = 1e5 Pa; 1 L = 1e-3 m3;
 # 1 kmol = 1e3 mol
 def test_temperature_with_unit(ammonia) -> None:
-    _same(ammonia.equilibrium(feed=FEED, T="450 degC", P=300e5), ammonia.equilibrium(feed=FEED, T=723.15, P=300e5))
+    _assert_same(ammonia.equilibrium(feed=FEED, T="450 degC", P=300e5), ammonia.equilibrium(feed=FEED, T=723.15, P=300e5))
 
 
 def test_pressure_with_unit(ammonia) -> None:
-    _same(ammonia.equilibrium(feed=FEED, T=700.0, P="300 bar"), ammonia.equilibrium(feed=FEED, T=700.0, P=300e5))
+    _assert_same(ammonia.equilibrium(feed=FEED, T=700.0, P="300 bar"), ammonia.equilibrium(feed=FEED, T=700.0, P=300e5))
 
 
 def test_volume_with_unit(ammonia) -> None:
     a = ammonia.equilibrium(feed=FEED, T=700.0, V="2.5 L")
     b = ammonia.equilibrium(feed=FEED, T=700.0, V=2.5e-3)
-    _same(a, b)
+    _assert_same(a, b)
     assert a.V == pytest.approx(2.5e-3, rel=1e-10)
 
 
 def test_feed_amounts_with_unit(ammonia) -> None:
     a = ammonia.equilibrium(feed={"N2": "1 kmol", "H2": "3 kmol"}, T=700.0, P=300e5)
-    _same(a, ammonia.equilibrium(feed={"N2": 1000.0, "H2": 3000.0}, T=700.0, P=300e5))
+    _assert_same(a, ammonia.equilibrium(feed={"N2": 1000.0, "H2": 3000.0}, T=700.0, P=300e5))
 
 
 @pytest.mark.parametrize("T", [np.int64(700), np.float32(700)], ids=["int64", "float32"])
 def test_numpy_scalar_temperature_gives_a_single_result(ammonia, T) -> None:
     r = ammonia.equilibrium(feed=FEED, T=T, P=300e5)
     assert isinstance(r, hipeq.EquilibriumResult), type(r)
-    _same(r, ammonia.equilibrium(feed=FEED, T=700.0, P=300e5))
+    _assert_same(r, ammonia.equilibrium(feed=FEED, T=700.0, P=300e5))
 
 
 def test_temperature_none_is_an_input_error(ammonia) -> None:
