@@ -389,7 +389,6 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
             for i in range(nc):
                 v += nu_pinv[i, r] * (F[F_N, i] - n0[i])
             row[layout.extents + r] = v
-    element_residuals(A, F[F_N], n0, row[layout.element_residuals:layout.element_residuals + A.shape[0]])
     row[layout.P] = P
     row[layout.V] = V
     row[layout.Z] = z
@@ -410,7 +409,11 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
 
 @inline_kernel
 def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
-    """Hold a converged answer to what status 0 promises; make every output finite whatever the status."""
+    """Make every output finite whatever the status, write the element residuals of the answer, and hold a
+    converged answer to what status 0 promises."""
+    nc = n0.shape[0]
+    closed = element_residuals(A, row[layout.amounts:layout.amounts + nc], n0,
+                               row[layout.element_residuals:layout.element_residuals + A.shape[0]])
     finite = True
     for a in range(layout.width):
         if not math.isfinite(row[a]):
@@ -418,12 +421,10 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
             finite = False
     if ints[STATUS] != CONVERGED:
         return
-    nc = n0.shape[0]
     if not finite:
         ints[STATUS] = SINGULAR
         ints[REASON] = REASON_NOT_FINITE
-    elif not element_residuals(A, row[layout.amounts:layout.amounts + nc], n0,
-                               row[layout.element_residuals:layout.element_residuals + A.shape[0]]):
+    elif not closed:
         ints[STATUS] = BALANCE_NOT_CLOSED
         ints[REASON] = REASON_ELEMENTS
     elif code == MODEL_VIRIAL and abs(row[layout.Z] - 1.0) > VIRIAL_MAX_DEPARTURE:
