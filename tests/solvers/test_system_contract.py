@@ -131,3 +131,23 @@ def test_state_solver_fills_caller_arrays_with_the_equilibrium_answers(system) -
     assert sealed(T[:2], np.array([1e-3, 2e-3]), feed[:2], np.empty((2, 4))) == 0
     with pytest.raises(InputError):
         solve(T, P, feed[:, :3], y)
+
+
+def test_residual_properties_at_the_answer_come_from_the_model(system) -> None:
+    """h_res and s_res on results equal the fugacity model evaluated at the answer's T, P, y, in a batch as alone;
+    s_res = (h_res - g_res)/T with g_res = RT sum_i y_i ln phi_i (Michelsen & Mollerup 2007, ch. 2)."""
+    one = system.equilibrium(feed={"N2": 1, "H2": 3}, T=723.15, P=300e5)
+    states = system.model.fugacity_coefficients(one.T, one.P, one.y.array)
+    assert one.h_res == pytest.approx(float(states.h_res), rel=1e-12)
+    g_res = 8.314462618 * one.T * float(np.dot(one.y.array, np.log(one.phi.array)))
+    assert one.s_res == pytest.approx((one.h_res - g_res) / one.T, rel=1e-9, abs=1e-9)
+    batch = system.equilibrium(feed={"N2": 1, "H2": 3}, T=np.array([650.0, 723.15]), P=np.array([50e5, 300e5]))
+    assert batch.h_res[1] == pytest.approx(one.h_res, rel=1e-9)
+    assert batch.h_res.shape == (2,) and np.all(np.isfinite(batch.s_res))
+    assert "h_res" in one.to_dict() and one.to_dict()["units"]["h_res"] == "J/mol"
+
+
+def test_residual_properties_of_the_ideal_gas_are_zero() -> None:
+    ideal = hipeq.ReactionSystem(["N2", "H2", "NH3"], eos="ideal")
+    result = ideal.equilibrium(feed={"N2": 1, "H2": 3}, T=723.15, P=300e5)
+    assert result.h_res == 0.0 and result.s_res == 0.0

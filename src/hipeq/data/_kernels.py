@@ -23,8 +23,8 @@ from hipeq._jit import entry, parallel_entry
 
 from hipeq.data.heat_capacity import trc_cp, trc_integral, trc_integral_over_T
 
-R = 8.314462618
-T_REF = 298.15
+from hipeq.constants import R, T_REFERENCE as T_REF
+
 FORM_TRC, FORM_POLYNOMIAL, FORM_CONSTANT = 0, 1, 2
 COL_FORM, COL_HF, COL_S0, COL_C0 = 0, 1, 2, 3
 N_COLUMNS = 11

@@ -30,7 +30,7 @@ import numpy.typing as npt
 
 from hipeq.errors import InputError, OutOfRangeWarning
 
-R = 8.314462618  # molar gas constant [J/(mol K)], CODATA 2018 exact value
+from hipeq.constants import R  # molar gas constant [J/(mol K)]
 HARD_T_MIN = 10.0  # [K]
 HARD_T_MAX = 6000.0  # [K]
 

@@ -33,8 +33,7 @@ __all__ = ["P_STANDARD", "R", "T_REFERENCE", "standard_enthalpies", "standard_en
            "reaction_enthalpy", "reaction_entropy", "reaction_gibbs", "equilibrium_constant",
            "ln_equilibrium_constant", "ln_equilibrium_constants", "METHODS", "standard_state_table"]
 
-P_STANDARD = 1e5  # [Pa] standard-state pressure (ideal gas at 1 bar)
-R = 8.314462618  # [J/(mol K)] molar gas constant (CODATA 2018, exact)
+from hipeq.constants import P_STANDARD, R  # standard state: ideal gas at 1 bar
 METHODS = ("cp-integral", "van-t-hoff")
 # (temperatures x species) from which H°, S° are evaluated on numba's thread pool; below it one thread takes a few
 # ms at most (~0.1 us per value), less than starting the pool in a fresh process (~40 ms), e.g. for the g0 tables

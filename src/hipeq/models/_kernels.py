@@ -29,7 +29,7 @@ from numba import prange
 
 from hipeq._jit import entry, inline_kernel, kernel, parallel_entry
 
-R = 8.314462618  # J/(mol K), CODATA 2018
+from hipeq.constants import R  # J/(mol K)
 
 MODEL_IDEAL = 0
 MODEL_VIRIAL = 1

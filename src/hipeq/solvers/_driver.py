@@ -59,7 +59,7 @@ from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_SCR
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
-P_STANDARD = 1e5  # [Pa]
+from hipeq.constants import P_STANDARD  # [Pa]
 LN_P_STANDARD = math.log(P_STANDARD)
 P_FLOOR = 1e-2  # [Pa] pressure limits of a sealed vessel
 P_CEILING = P_MAX  # [Pa] the fugacity models' upper limit of P

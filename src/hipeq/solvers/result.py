@@ -41,6 +41,7 @@ from typing import Any
 
 import numpy as np
 
+from hipeq.constants import R as R_GAS
 from hipeq.solvers import _common as C
 from hipeq.solvers import _arrays as A
 from hipeq.solvers._arrays import METHOD_NAMES
@@ -149,6 +150,7 @@ class _SystemInfo:
     data_sources: Mapping[str, Mapping[str, str]]
     notes: tuple[str, ...]
     k_source: str
+    model: Any  # the CompiledModel that gave ln phi (residual properties at the answer come from it)
 
 
 def _ln_k_y(nu: np.ndarray, y: np.ndarray) -> np.ndarray:
@@ -245,6 +247,38 @@ class _Common:
         """Relative residual of each element balance, (sum_i a_ei n_i - b_e) / b_e."""
         return SpeciesValues(self._info.elements, self._info.element_index, self._element_res)
 
+    @cached_property
+    def _residual(self) -> tuple[np.ndarray, np.ndarray]:
+        """(h_res [J/mol], s_res [J/(mol K)]) at the answer; NaN where the state did not converge or where the
+        model's stable root at (T, P, y) is not the one the answer took (a sealed vessel between two roots)."""
+        status = np.asarray(self.status)
+        T, P, Z = (np.broadcast_to(np.asarray(v, dtype=float), status.shape) for v in (self.T, self.P, self.Z))
+        h, s = np.full(status.shape, np.nan), np.full(status.shape, np.nan)
+        ok = status == 0
+        if np.any(ok):
+            states = self._info.model.fugacity_coefficients(T[ok], P[ok], self._y[ok] if status.ndim else self._y)
+            same_root = np.abs(np.asarray(states.Z) - Z[ok]) <= 1e-7 * np.maximum(Z[ok], 1e-3)
+            h[ok] = np.where(same_root, states.h_res, np.nan)
+            s[ok] = np.where(same_root, (states.h_res - R_GAS * T[ok] * states.g_res_RT) / T[ok], np.nan)
+        if not status.ndim:
+            return h[()], s[()]
+        for value in (h, s):
+            value.flags.writeable = False
+        return h, s
+
+    @property
+    def h_res(self) -> Any:
+        """Residual molar enthalpy of the equilibrium mixture [J/mol], h - h_ideal gas at the same T, P, y:
+        h_res = -R T^2 d(g_res/RT)/dT at fixed P, y (Michelsen & Mollerup 2007, ch. 2), from the system's fugacity
+        model at the answer (0 for the ideal gas). NaN where the state did not converge."""
+        return self._residual[0]
+
+    @property
+    def s_res(self) -> Any:
+        """Residual molar entropy of the equilibrium mixture [J/(mol K)] at the same T, P, y:
+        s_res = (h_res - g_res)/T (Michelsen & Mollerup 2007, ch. 2). NaN where the state did not converge."""
+        return self._residual[1]
+
     @property
     def eos(self) -> str:
         """Name of the fugacity model."""
@@ -287,7 +321,7 @@ class _Common:
 
     _PUBLIC = ("T", "P", "V", "Z", "species", "reactions", "amounts", "y", "phi", "conversion", "extents", "ln_K",
                "K", "K_phi", "K_y", "residuals", "element_residuals", "iterations", "outer_iterations", "converged",
-               "status", "reason", "method", "method_requested", "scheme", "root", "liquid_like", "G_RT", "eos", "kij",
+               "status", "reason", "method", "method_requested", "scheme", "root", "liquid_like", "G_RT", "h_res", "s_res", "eos", "kij",
                "zero_kij_pairs", "kij_sources", "K_source", "data_sources", "notes", "standard_state")
 
     def to_dict(self) -> dict[str, Any]:
@@ -304,7 +338,8 @@ class _Common:
 
 
 UNITS = MappingProxyType({"T": "K", "P": "Pa", "V": "m3", "amounts": "mol", "extents": "mol", "Z": "-", "y": "-",
-                          "phi": "-", "K": "- (pressures relative to 1 bar)"})
+                          "phi": "-", "K": "- (pressures relative to 1 bar)", "h_res": "J/mol",
+                          "s_res": "J/(mol K)", "G_RT": "mol"})
 
 
 def _status_text(status: int, reason: int, method: str, requested: str) -> str:

@@ -150,7 +150,7 @@ class ReactionSystem:
             element_index=MappingProxyType({e: k for k, e in enumerate(self.elements)}), eos=m.eos, kij=m.kij,
             kij_sources=m.kij_sources, zero_kij_pairs=m.zero_kij_pairs,
             data_sources=MappingProxyType({r.name: MappingProxyType(dict(r.sources)) for r in records}),
-            notes=self.notes, k_source=k_source)
+            notes=self.notes, k_source=k_source, model=m)
 
     # ------------------------------------------------------------------------------------------------------
     @staticmethod
