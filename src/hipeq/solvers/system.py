@@ -303,6 +303,15 @@ class ReactionSystem:
         return self._solve_scalar(feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations,
                                   initial_guess, raise_on_failure)
 
+    def feed_vector(self, feed: Mapping[str, Any] | Any) -> np.ndarray:
+        """One feed as amounts [mol] in the order of ``species_names``, validated as :meth:`equilibrium` does
+        ({name: amount} with numbers or unit strings such as ``"3 kmol"``, or an array of shape (nc,))."""
+        if isinstance(feed, Mapping):
+            feed = {name: feed_amount(name, amount) for name, amount in feed.items()}
+            if not all(type(v) is float for v in feed.values()):
+                raise InputError("feed", "feed_vector takes one feed: every amount a number or a unit string")
+        return self._feed_vector(feed)[0]
+
     def _feed_vector(self, feed: Any) -> tuple[np.ndarray, int]:
         """The feed as amounts [mol] in species order and its pattern key (bit i set when species i is fed)."""
         nc = len(self.species_names)
