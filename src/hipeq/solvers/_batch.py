@@ -110,15 +110,16 @@ def solve_rows(system: ReactionSystem, Tf: np.ndarray, PVf: np.ndarray, N0: np.n
     same) into packed answer rows ``out`` (n, width) and ``ints`` (n, INT_COLUMNS), allocated when not given.
     Returns (out, ints, valid, bad_ln_k): ``valid`` 0 where a state's input was out of range, ``bad_ln_k`` True
     where the user's ln K was not finite (empty without a user ln K)."""
-    compiled = system.compiled
+    context = system.context
+    compiled = context.compiled
     n = Tf.shape[0]
     nr = len(system.reactions)
     fixed_volume = options.fixed_volume
     # validity (one compiled pass) and feed patterns (block by block, so that temporaries stay bounded by BLOCK):
     # peak memory stays flat in the number of states
     valid = np.empty(n, dtype=np.uint8)
-    D.valid_states(Tf, PVf, N0, float(system.T_min), float(system.T_max), P_MAX, fixed_volume, valid)
-    bits = system._bits
+    D.valid_states(Tf, PVf, N0, context.T_min, context.T_max, P_MAX, fixed_volume, valid)
+    bits = context.pattern_bits
     if scalar_feed:  # one feed for every state: one pattern of zero amounts, given once
         keys = [int((N0[0] > 0.0) @ bits)]
     else:
@@ -140,20 +141,20 @@ def solve_rows(system: ReactionSystem, Tf: np.ndarray, PVf: np.ndarray, N0: np.n
             if ok.any():
                 unique, inverse = np.unique((N0[a:b][ok] > 0.0) @ bits, return_inverse=True)
                 pats[a:b][ok] = np.array([lookup[int(k)] for k in unique], dtype=np.int64)[inverse]
-    layout = system._layout
+    layout = context.layout
     if out is None:
         out = np.empty((n, layout.width))  # one packed row per state (hipeq.solvers._arrays.answer_layout)
     if ints is None:
         ints = np.empty((n, A.INT_COLUMNS), dtype=np.int64)
-    bad_ln_k = np.zeros(n if system._ln_K is not None else 0, dtype=bool)
+    bad_ln_k = np.zeros(n if context.user_ln_k is not None else 0, dtype=bool)
     for a in range(0, n, BLOCK):
         b = min(n, a + BLOCK)
         ln_k_user = np.zeros((0, nr))
-        if system._ln_K is not None:
+        if context.user_ln_k is not None:
             ln_k_user = np.zeros((b - a, nr))
             ok = valid[a:b] != 0
             if ok.any():
-                values = system._user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
+                values = context.user_ln_k(np.ascontiguousarray(Tf[a:b][ok]))
                 finite = np.all(np.isfinite(values), axis=1)
                 values[~finite] = 0.0
                 ln_k_user[ok] = values
@@ -188,7 +189,8 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
     if n > MAX_STATES:
         raise InputError("T", f"{n} states in one call is more than {MAX_STATES}; split the work into calls of at "
                               "most that many states")
-    options = system._opts(method, scheme, tol, max_iterations, fixed_volume, False)
+    context = system.context
+    options = context.options(method, scheme, tol, max_iterations, fixed_volume, False)
     nc = len(system.species_names)
     # fresh writeable C-contiguous copies: one compiled signature whatever the caller passed
     Tf = np.array(np.broadcast_to(T_arr, shape).reshape(n), dtype=np.float64, order="C")
@@ -200,5 +202,5 @@ def solve_batch(system: ReactionSystem, feed: Any, T: Any, value: Any, fixed_vol
     out, ints, valid, bad_ln_k = solve_rows(system, Tf, PVf, N0, scalar_feed, options)
     for arr in (out, ints, Tf, PVf, N0):
         arr.flags.writeable = False
-    reasons = _InvalidReasons(system.T_min, system.T_max, Tf, PVf, N0, fixed_volume, valid, bad_ln_k)
-    return batch_result(system._info, system._layout, out, ints, shape, Tf, N0, method, scheme, fixed_volume, reasons)
+    reasons = _InvalidReasons(context.T_min, context.T_max, Tf, PVf, N0, fixed_volume, valid, bad_ln_k)
+    return batch_result(context.info, context.layout, out, ints, shape, Tf, N0, method, scheme, fixed_volume, reasons)

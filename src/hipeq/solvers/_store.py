@@ -11,9 +11,9 @@ ids it uses, or the new one).
 from __future__ import annotations
 
 import threading
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, NamedTuple
 
 import numpy as np
 
@@ -104,3 +104,30 @@ class CompiledSystem:
         """Arrays of every pattern known after ``keys`` were registered, the id of each key, and the patterns
         (one consistent snapshot; see :meth:`PatternStore.lookup`)."""
         return self.store.lookup(keys)
+
+
+class SolveContext(NamedTuple):
+    """Everything the scalar, batch and bound paths need from a :class:`~hipeq.solvers.system.ReactionSystem`,
+    built once by the system (``system.context``): the paths read these fields, never the system's private
+    members.
+
+    compiled: the frozen arrays and the feed-pattern store. layout: positions in a packed answer row
+    (:func:`hipeq.solvers._arrays.answer_layout`). info: provenance for result objects. pattern_bits: 1 << i per
+    species (a feed's zero-amount pattern is ``(n0 > 0) @ pattern_bits``). T_min, T_max: the temperature range
+    [K] of the species data. user_ln_k: the user's ln K callable checked for shape (T (n,) -> (n, n_reactions)),
+    or None. options: ``options(method, scheme, tol, max_iterations, fixed_volume, guess)`` -> the validated,
+    cached :class:`~hipeq.solvers._arrays.Options`.
+    """
+
+    compiled: CompiledSystem
+    layout: Any
+    info: Any
+    pattern_bits: np.ndarray
+    T_min: float
+    T_max: float
+    user_ln_k: Callable[[np.ndarray], np.ndarray] | None
+    options: Callable[..., Any]
+
+    def feed_key(self, n0: np.ndarray) -> int:
+        """The zero-amount pattern key of one feed (bit i set when species i is fed)."""
+        return int((n0 > 0.0) @ self.pattern_bits)

@@ -45,9 +45,10 @@ class StateSolver:
     def __init__(self, system: ReactionSystem, method: str = "extent", fixed_volume: bool = False,
                  tol: float = 1e-11, max_iterations: int = 100) -> None:
         self.system = system
-        self.options = system._opts(method, "coupled", tol, max_iterations, bool(fixed_volume), False)
+        self.context = system.context
+        self.options = self.context.options(method, "coupled", tol, max_iterations, bool(fixed_volume), False)
         self._nc = len(system.species_names)
-        self._layout = system._layout
+        self._layout = self.context.layout
         self._out = np.empty((0, self._layout.width))
         self._ints = np.empty((0, A.INT_COLUMNS), dtype=np.int64)
         self._owner = threading.get_ident()
@@ -74,7 +75,7 @@ class StateSolver:
             raise InputError("T", f"needs T and P (or V) of shape (n,), feed and y_out of shape (n, {self._nc}) "
                                   f"with n >= 1; got {np.shape(T)}, {np.shape(PV)}, {np.shape(feed)}, "
                                   f"{np.shape(y_out)}")
-        if n == 1 and self.system._ln_K is None:  # one state: the scalar core, no thread-pool launch
+        if n == 1 and self.context.user_ln_k is None:  # one state: the scalar core, no thread-pool launch
             return self._one(Tf, PVf, N0, y_out, status_out, amounts_out, P_out)
         if self._out.shape[0] < n:
             self._out = np.empty((n, self._layout.width))
@@ -94,20 +95,16 @@ class StateSolver:
              status_out: np.ndarray | None, amounts_out: np.ndarray | None, P_out: np.ndarray | None) -> int:
         """One state through ``_driver.solve_one`` (as a scalar ``equilibrium`` call), with the same validity
         rules as a batch."""
-        system = self.system
+        context = self.context
         row = self._out[0] if self._out.shape[0] else np.empty(self._layout.width)
         ints = self._ints[0] if self._ints.shape[0] else np.empty(A.INT_COLUMNS, dtype=np.int64)
         valid = np.empty(1, dtype=np.uint8)
-        D.valid_states(Tf, PVf, N0, float(system.T_min), float(system.T_max), P_MAX, self.options.fixed_volume,
+        D.valid_states(Tf, PVf, N0, context.T_min, context.T_max, P_MAX, self.options.fixed_volume,
                        valid)
         n0 = N0[0]
         if valid[0]:
-            key = 0
-            for j, v in enumerate(n0.tolist()):
-                if v > 0.0:
-                    key |= 1 << j
-            patterns, (pat,), _ = system.compiled.patterns_for((key,))
-            D.solve_one(system.compiled.arrays, patterns, float(Tf[0]), float(PVf[0]), n0, pat, _EMPTY, _EMPTY,
+            patterns, (pat,), _ = context.compiled.patterns_for((context.feed_key(n0),))
+            D.solve_one(context.compiled.arrays, patterns, float(Tf[0]), float(PVf[0]), n0, pat, _EMPTY, _EMPTY,
                         self.options, row, ints)
         else:
             total = float(np.sum(np.maximum(n0, 0.0)))

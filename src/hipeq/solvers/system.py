@@ -38,7 +38,7 @@ from hipeq.models.inputs import P_MAX
 from hipeq.solvers import _arrays as A
 from hipeq.solvers import _driver as D
 from hipeq.solvers._patterns import Pattern, null_space
-from hipeq.solvers._store import CompiledSystem, PatternStore
+from hipeq.solvers._store import CompiledSystem, PatternStore, SolveContext
 from hipeq.solvers._tables import g0_table
 from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo, scalar_result
 from hipeq.units import to_si
@@ -151,6 +151,10 @@ class ReactionSystem:
             kij_sources=m.kij_sources, zero_kij_pairs=m.zero_kij_pairs,
             data_sources=MappingProxyType({r.name: MappingProxyType(dict(r.sources)) for r in records}),
             notes=self.notes, k_source=k_source, model=m)
+        # what the scalar, batch and bound paths read (they never reach into this object's private members)
+        self.context = SolveContext(compiled=self.compiled, layout=self._layout, info=self._info,
+                                    pattern_bits=self._bits, T_min=float(self.T_min), T_max=float(self.T_max),
+                                    user_ln_k=self._user_ln_k if ln_K is not None else None, options=self._opts)
 
     # ------------------------------------------------------------------------------------------------------
     @staticmethod
