@@ -6,7 +6,7 @@ STAMP   := $(VENV)/.installed
 # numba's cache: hipeq chooses the folder itself and keys it by the kernel sources (src/hipeq/_cache.py), the same
 # folder for make targets and plain runs; nothing to set here (see DEVELOPERS.md, "The compiled-code cache")
 
-.PHONY: test demo bench soak clean
+.PHONY: test demo bench soak clean browser
 
 $(STAMP): pyproject.toml
 	test -d $(VENV) || $(PY) -m venv $(VENV)
@@ -15,6 +15,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 test: $(STAMP)
+	@sh tools/install-browser
 	$(BIN)/python -m pytest -q -n 2 -m "not soak"
 
 demo: $(STAMP)
@@ -28,3 +29,6 @@ soak: $(STAMP)
 
 clean:
 	rm -rf $(VENV) .numba_cache .pytest_cache .hypothesis
+
+browser:
+	sh tools/install-browser

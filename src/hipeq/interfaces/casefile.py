@@ -1,21 +1,15 @@
 """Case files: one TOML description of an equilibrium job, with explicit units, for the CLI and the examples.
 
-Layout (every table but ``[mixture]``, ``[feed]`` and ``[conditions]`` optional)::
-
-    [case]        title, notes
-    [mixture]     species = [...], reactions = [...] (optional: derived from the species when absent)
-    [feed]        <species> = "<amount> <unit>"        e.g. N2 = "23.6 mol"
-    [model]       eos = "PR", quantum_hydrogen = false, kij = { "H2-N2" = 0.08 }
-    [conditions]  temperature = "440 degC", and pressure = "215 bar" or volume = "2.5 m3"
-    [compare]     models = ["ideal", "PR"]
-    [sweep]       temperature = ["380 degC", "500 degC", 7], pressure = ["100 bar", "400 bar", 4]
-
-Every key is checked: an unknown table or key, a missing one, or a value with a missing or wrong unit gives an
-:class:`~hipeq.errors.InputError` whose field names the key (``[conditions] pressure``).
+The tables and keys are declared once in :mod:`hipeq.interfaces.schema` (and documented from it in
+``docs/casefile.md``). :func:`load_case` reads a file, checks every table and key against the schema and
+converts quantities to SI; an error is an :class:`~hipeq.errors.InputError` whose field names the file position
+(``[conditions] pressure``) and whose message says what is allowed.
 """
 from __future__ import annotations
 
+import math
 import tomllib
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -23,150 +17,273 @@ from typing import Any
 import numpy as np
 
 from hipeq.errors import InputError
-from hipeq.units import parse_quantity
+from hipeq.interfaces.schema import MAX_AXIS, MAX_STATES, TABLE_BY_NAME, TABLES, Key, Table
+from hipeq.units import parse_quantity, units_of
 
-_SCHEMA: dict[str, dict[str, bool]] = {  # table -> key -> required
-    "case": {"title": False, "notes": False},
-    "mixture": {"species": True, "reactions": False},
-    "feed": {},  # species names, checked against [mixture] species
-    "model": {"eos": False, "quantum_hydrogen": False, "kij": False},
-    "conditions": {"temperature": True, "pressure": False, "volume": False},
-    "compare": {"models": False},
-    "sweep": {"temperature": False, "pressure": False},
-}
-_REQUIRED_TABLES = ("mixture", "feed", "conditions")
+_EXAMPLE_UNIT = {"temperature": "degC", "pressure": "bar", "volume": "m3", "amount": "mol"}
 
 
 @dataclass(frozen=True)
 class Case:
-    """A parsed case file, in SI units (K, Pa, m3, mol)."""
+    """A checked case file in SI units (K, Pa, m3, mol).
+
+    ``model`` holds the keyword arguments of :class:`hipeq.ReactionSystem` (eos, kij, volume_translation,
+    quantum_hydrogen, hydrogen_omega, pure_eos); ``solver`` those of ``equilibrium`` (method, scheme, tol,
+    max_iterations). Optional parts are None when their table is absent: ``compare``, ``sweep``, ``map``,
+    ``adiabatic``, ``beds``, ``separator`` (dicts of SI values, axes as float arrays).
+    """
 
     title: str
     species: tuple[str, ...]
     reactions: tuple[str, ...] | None
     feed: dict[str, float]
-    eos: str
-    quantum_hydrogen: bool
-    kij: dict[tuple[str, str], float]
+    model: dict[str, Any]
+    solver: dict[str, Any]
     T: float
     P: float | None
     V: float | None
-    compare_models: tuple[str, ...]
-    sweep_T: np.ndarray | None = field(default=None, compare=False)
-    sweep_P: np.ndarray | None = field(default=None, compare=False)
+    report_species: tuple[str, ...] | None = None
+    key: str | None = None
+    compare: dict[str, Any] | None = None
+    sweep: dict[str, Any] | None = field(default=None, compare=False)
+    map: dict[str, Any] | None = field(default=None, compare=False)
+    adiabatic: dict[str, Any] | None = None
+    beds: dict[str, Any] | None = None
+    separator: dict[str, Any] | None = None
     notes: str = ""
     path: str = ""
 
+    @property
+    def eos(self) -> str:
+        """The equation of state of the main solve."""
+        return str(self.model.get("eos", "PR"))
 
-def _quantity(value: Any, kind: str, where: str) -> float:
+    def tables(self) -> tuple[str, ...]:
+        """The optional job tables present in the case."""
+        return tuple(name for name in ("compare", "sweep", "map", "adiabatic", "beds", "separator")
+                     if getattr(self, name) is not None)
+
+
+# ---------------------------------------------------------------------------------------------------------
+# values of each kind
+# ---------------------------------------------------------------------------------------------------------
+def _quantity(value: Any, dimension: str, where: str) -> float:
+    unit = _EXAMPLE_UNIT.get(dimension, units_of(dimension)[0])
     if isinstance(value, (int, float)) and not isinstance(value, bool):
-        raise InputError(where, f"give a unit with the number, e.g. \"{value} {_EXAMPLE_UNIT[kind]}\"")
+        raise InputError(where, f"give a unit with the number, e.g. \"{value} {unit}\" (units: "
+                                f"{', '.join(units_of(dimension))})")
     if not isinstance(value, str):
-        raise InputError(where, f"expected a quantity string such as \"1 {_EXAMPLE_UNIT[kind]}\", got {value!r}")
+        raise InputError(where, f"expected a quantity string such as \"1 {unit}\", got {value!r}")
     try:
-        return parse_quantity(value, kind)
+        return parse_quantity(value, dimension)
     except InputError as err:
-        raise InputError(where, str(err)) from None
+        raise InputError(where, str(err).split(": ", 1)[-1]) from None
 
 
-_EXAMPLE_UNIT = {"temperature": "degC", "pressure": "bar", "volume": "m3", "amount": "mol"}
+def _axis(value: Any, dimension: str, where: str) -> np.ndarray:
+    unit = _EXAMPLE_UNIT[dimension]
+    form = (f"expected [start, stop, count] such as [\"1 {unit}\", \"2 {unit}\", 5] with 1 <= count <= {MAX_AXIS}, "
+            f"or a list of quantities")
+    if not isinstance(value, list) or not value:
+        raise InputError(where, form)
+    if len(value) == 3 and isinstance(value[2], (int, float)) and not isinstance(value[2], bool):
+        count = value[2]
+        if not (isinstance(count, int) and 1 <= count <= MAX_AXIS):
+            raise InputError(where + " count", f"must be a whole number from 1 to {MAX_AXIS}, got {count!r}")
+        lo = _quantity(value[0], dimension, where + " start")
+        hi = _quantity(value[1], dimension, where + " stop")
+        if count == 1 and lo != hi:
+            raise InputError(where, "count 1 needs start = stop (one value); give a larger count for a range")
+        return np.linspace(lo, hi, count)
+    if len(value) > MAX_AXIS:
+        raise InputError(where, f"at most {MAX_AXIS} values, got {len(value)}")
+    return np.array([_quantity(v, dimension, f"{where} [{i}]") for i, v in enumerate(value)])
 
 
-def _range(value: Any, kind: str, where: str) -> np.ndarray:
-    if not (isinstance(value, list) and len(value) == 3 and isinstance(value[2], int) and value[2] >= 2):
-        raise InputError(where, f"expected [start, stop, count] such as [\"1 {_EXAMPLE_UNIT[kind]}\", "
-                                f"\"2 {_EXAMPLE_UNIT[kind]}\", 5] with count >= 2")
-    lo = _quantity(value[0], kind, where + " start")
-    hi = _quantity(value[1], kind, where + " stop")
-    return np.linspace(lo, hi, value[2])
+def _value(key: Key, value: Any, where: str, species: tuple[str, ...]) -> Any:
+    kind = key.kind
+    if kind == "text":
+        if not isinstance(value, str):
+            raise InputError(where, f"expected a string in quotes, got {value!r}")
+        return value
+    if kind == "flag":
+        if not isinstance(value, bool):
+            raise InputError(where, f"expected true or false, got {value!r}")
+        return value
+    if kind in ("number", "count"):
+        ok = isinstance(value, int) if kind == "count" else isinstance(value, (int, float))
+        if not ok or isinstance(value, bool) or not math.isfinite(value):
+            raise InputError(where, f"expected {'a whole number' if kind == 'count' else 'a plain number'} from "
+                                    f"{key.low:g} to {key.high:g}, got {value!r}")
+        if not key.low <= value <= key.high:
+            raise InputError(where, f"must be from {key.low:g} to {key.high:g}, got {value!r}")
+        return int(value) if kind == "count" else float(value)
+    if kind == "choice":
+        match = next((c for c in key.choices if isinstance(value, str) and c.lower() == value.strip().lower()),
+                     None)
+        if match is None:
+            raise InputError(where, f"must be one of {', '.join(repr(c) for c in key.choices)}, got {value!r}")
+        return match
+    if kind == "species":
+        if value not in species:
+            raise InputError(where, f"must be one of [mixture] species ({', '.join(species)}), got {value!r}")
+        return value
+    if kind in ("species-list", "reaction-list", "models"):
+        if not (isinstance(value, list) and value and all(isinstance(v, str) for v in value)):
+            raise InputError(where, f"expected a non-empty list of strings, e.g. {key.example}")
+        if kind == "species-list" and species:
+            unknown = [v for v in value if v not in species]
+            if unknown:
+                raise InputError(where, f"{', '.join(map(repr, unknown))} not in [mixture] species "
+                                        f"({', '.join(species)})")
+        if len(set(value)) != len(value):
+            raise InputError(where, "each entry may appear once")
+        return tuple(value)
+    if kind == "quantity":
+        return _quantity(value, key.dimension, where)
+    if kind == "quantity-list":
+        if not (isinstance(value, list) and value):
+            raise InputError(where, f"expected a non-empty list of quantities, e.g. {key.example}")
+        return np.array([_quantity(v, key.dimension, f"{where} [{i}]") for i, v in enumerate(value)])
+    if kind == "axis":
+        return _axis(value, key.dimension, where)
+    if kind == "kij":
+        return _kij(value, where, species)
+    raise AssertionError(f"schema kind {kind!r} has no reader")  # pragma: no cover
 
 
-def _check_keys(doc: dict[str, Any]) -> None:
-    for table, content in doc.items():
-        if table not in _SCHEMA:
-            raise InputError(f"[{table}]", f"unknown table; allowed tables: {', '.join(_SCHEMA)}")
-        if not isinstance(content, dict):
-            raise InputError(f"[{table}]", "must be a table (a [section] with key = value lines)")
-        if table == "feed":
-            continue
-        for key in content:
-            if key not in _SCHEMA[table]:
-                raise InputError(f"[{table}] {key}",
-                                 f"unknown key; allowed keys: {', '.join(_SCHEMA[table])}")
-    for table in _REQUIRED_TABLES:
-        if table not in doc:
-            raise InputError(f"[{table}]", "missing table")
-    for table, keys in _SCHEMA.items():
-        for key, required in keys.items():
-            if required and key not in doc.get(table, {}):
-                raise InputError(f"[{table}] {key}", "missing key")
+def _kij(value: Any, where: str, species: tuple[str, ...]) -> Any:
+    if isinstance(value, str):
+        if value.strip().lower() != "e-ppr78":
+            raise InputError(where, f"the named k_ij method is \"e-ppr78\" (PR and PR78); got {value!r}; "
+                                    "otherwise give a table of pairs such as { \"H2-N2\" = 0.08 }")
+        return "e-ppr78"
+    if not isinstance(value, Mapping):
+        raise InputError(where, "expected \"e-ppr78\" or a table of pairs such as { \"H2-N2\" = 0.08 }")
+    pairs: dict[tuple[str, str], float] = {}
+    for pair, number in value.items():
+        parts = tuple(p.strip() for p in str(pair).split("-"))
+        if len(parts) != 2 or not all(p in species for p in parts):
+            raise InputError(f"{where} {pair}", f"expected \"A-B\" with A and B in [mixture] species "
+                                                f"({', '.join(species)})")
+        if isinstance(number, bool) or not isinstance(number, (int, float)) or not -1.0 <= number <= 1.0:
+            raise InputError(f"{where} {pair}", f"expected a number from -1 to 1, got {number!r}")
+        pairs[parts] = float(number)
+    return pairs
 
 
-def parse_case(doc: dict[str, Any], path: str = "") -> Case:
+# ---------------------------------------------------------------------------------------------------------
+# tables
+# ---------------------------------------------------------------------------------------------------------
+def _read_table(table: Table, content: Any, species: tuple[str, ...]) -> dict[str, Any]:
+    if not isinstance(content, Mapping):
+        raise InputError(f"[{table.name}]", "must be a table (a [section] with key = value lines)")
+    out = {}
+    for name, value in content.items():
+        key = table.key(name)
+        if key is None:
+            raise InputError(f"[{table.name}] {name}", f"unknown key; allowed keys: "
+                                                       f"{', '.join(k.name for k in table.keys)}")
+        out[name] = _value(key, value, f"[{table.name}] {name}", species)
+    for key in table.keys:
+        if key.required and key.name not in out:
+            raise InputError(f"[{table.name}] {key.name}", f"missing key ({key.help}; e.g. {key.name} = "
+                                                           f"{key.example})")
+    return out
+
+
+def _states(where: str, *axes: np.ndarray | None) -> None:
+    count = math.prod(len(a) for a in axes if a is not None)
+    if count > MAX_STATES:
+        raise InputError(where, f"{count:,} states is more than {MAX_STATES:,}; use fewer points per axis")
+
+
+def parse_case(doc: Mapping[str, Any], path: str = "") -> Case:
     """Check a case document (a dict as read from TOML) against the schema and convert it to SI units."""
-    _check_keys(doc)
-    mix = doc["mixture"]
-    species = mix["species"]
-    if not (isinstance(species, list) and species and all(isinstance(s, str) for s in species)):
-        raise InputError("[mixture] species", "expected a non-empty list of species names")
-    reactions = mix.get("reactions")
-    if reactions is not None and not (isinstance(reactions, list) and all(isinstance(r, str) for r in reactions)):
-        raise InputError("[mixture] reactions", "expected a list of reaction strings such as \"N2 + 3 H2 = 2 NH3\"")
+    for name in doc:
+        if name not in TABLE_BY_NAME:
+            raise InputError(f"[{name}]", f"unknown table; allowed tables: {', '.join(t.name for t in TABLES)}")
+    for table in TABLES:
+        if table.required and table.name not in doc:
+            raise InputError(f"[{table.name}]", f"missing table ({table.help})")
+    mixture = _read_table(TABLE_BY_NAME["mixture"], doc["mixture"], ())
+    species = mixture["species"]
+    parts = {t.name: _read_table(t, doc[t.name], species) for t in TABLES
+             if t.name in doc and not t.species_keys and t.name != "mixture"}
 
     feed: dict[str, float] = {}
+    if not isinstance(doc["feed"], Mapping) or not doc["feed"]:
+        raise InputError("[feed]", "must list at least one species with its amount, e.g. N2 = \"1 mol\"")
     for name, value in doc["feed"].items():
         if name not in species:
             raise InputError(f"[feed] {name}", f"not in [mixture] species ({', '.join(species)})")
         amount = _quantity(value, "amount", f"[feed] {name}")
-        if amount < 0:
+        if not amount >= 0:
             raise InputError(f"[feed] {name}", "amount must be >= 0 mol")
         feed[name] = amount
+    if not any(v > 0 for v in feed.values()):
+        raise InputError("[feed]", "every amount is zero; give at least one positive amount")
 
-    model = doc.get("model", {})
-    eos = model.get("eos", "PR")
-    if not isinstance(eos, str):
-        raise InputError("[model] eos", "expected a model name such as \"PR\"")
-    quantum = model.get("quantum_hydrogen", False)
-    if not isinstance(quantum, bool):
-        raise InputError("[model] quantum_hydrogen", "expected true or false")
-    kij: dict[tuple[str, str], float] = {}
-    for pair, value in model.get("kij", {}).items():
-        parts = pair.split("-")
-        if len(parts) != 2 or not all(p in species for p in parts):
-            raise InputError(f"[model] kij {pair}", "expected \"A-B\" with A and B in [mixture] species")
-        if not isinstance(value, (int, float)) or isinstance(value, bool):
-            raise InputError(f"[model] kij {pair}", "expected a number")
-        kij[(parts[0], parts[1])] = float(value)
+    conditions = parts["conditions"]
+    if ("pressure" in conditions) == ("volume" in conditions):
+        raise InputError("[conditions]", "give exactly one of pressure (fixed pressure) or volume (sealed vessel)")
+    model = dict(parts.get("model", {}))
+    if model.get("volume_translation") == "none":
+        model["volume_translation"] = None
+    solver = dict(parts.get("solver", {}))
+    if "tolerance" in solver:
+        solver["tol"] = solver.pop("tolerance")
 
-    cond = doc["conditions"]
-    T = _quantity(cond["temperature"], "temperature", "[conditions] temperature")
-    has_p, has_v = "pressure" in cond, "volume" in cond
-    if has_p == has_v:
-        raise InputError("[conditions]", "give exactly one of pressure or volume")
-    P = _quantity(cond["pressure"], "pressure", "[conditions] pressure") if has_p else None
-    V = _quantity(cond["volume"], "volume", "[conditions] volume") if has_v else None
-
-    models = doc.get("compare", {}).get("models", [])
-    if not (isinstance(models, list) and all(isinstance(m, str) for m in models)):
-        raise InputError("[compare] models", "expected a list of model names")
-    sweep = doc.get("sweep", {})
-    sweep_T = _range(sweep["temperature"], "temperature", "[sweep] temperature") if "temperature" in sweep else None
-    sweep_P = _range(sweep["pressure"], "pressure", "[sweep] pressure") if "pressure" in sweep else None
-
-    info = doc.get("case", {})
-    return Case(title=str(info.get("title", Path(path).stem or "case")), species=tuple(species),
-                reactions=tuple(reactions) if reactions is not None else None, feed=feed, eos=eos,
-                quantum_hydrogen=quantum, kij=kij, T=T, P=P, V=V, compare_models=tuple(models),
-                sweep_T=sweep_T, sweep_P=sweep_P, notes=str(info.get("notes", "")), path=path)
+    sweep = parts.get("sweep")
+    if sweep is not None:
+        if not sweep:
+            raise InputError("[sweep]", "give temperature and/or one of pressure or volume")
+        if "pressure" in sweep and "volume" in sweep:
+            raise InputError("[sweep]", "give one of pressure or volume, not both")
+        if "volume" in sweep and "volume" not in conditions:
+            raise InputError("[sweep] volume", "sweeps the volume of a sealed vessel: the case's [conditions] "
+                                               "must give a volume too")
+        if "pressure" in sweep and "pressure" not in conditions:
+            raise InputError("[sweep] pressure", "the case is a sealed vessel ([conditions] volume): sweep the "
+                                                 "volume instead")
+        _states("[sweep]", sweep.get("temperature"), sweep.get("pressure"), sweep.get("volume"))
+    grid = parts.get("map")
+    if grid is not None:
+        if "volume" in conditions:
+            raise InputError("[map]", "maps are over temperature and pressure; the case is a sealed vessel "
+                                      "([conditions] volume); use [sweep] with volume instead")
+        _states("[map]", grid["temperature"], grid["pressure"], np.zeros(len(grid.get("models", ())) or 4))
+    for name in ("adiabatic", "beds", "separator"):
+        if name in parts and "volume" in conditions:
+            raise InputError(f"[{name}]", "works at the case's pressure; the case is a sealed vessel "
+                                          "([conditions] volume)")
+    if "compare" in parts and "tolerance" in parts["compare"] and "relative_tolerance" in parts["compare"]:
+        raise InputError("[compare]", "give tolerance or relative_tolerance, not both")
+    report = parts.get("report", {})
+    info = parts.get("case", {})
+    return Case(title=info.get("title", Path(path).stem or "case"), species=species,
+                reactions=mixture.get("reactions"), feed=feed, model=model, solver=solver,
+                T=conditions["temperature"], P=conditions.get("pressure"), V=conditions.get("volume"),
+                report_species=report.get("species"), key=report.get("key"), compare=parts.get("compare"),
+                sweep=sweep, map=grid, adiabatic=parts.get("adiabatic"), beds=parts.get("beds"),
+                separator=parts.get("separator"), notes=info.get("notes", ""), path=path)
 
 
 def load_case(path: str | Path) -> Case:
-    """Read and check a TOML case file; errors name the file, the table and the key."""
+    """Read and check a TOML case file (UTF-8); errors name the file, the table and the key."""
     p = Path(path)
+    if p.is_dir():
+        raise InputError("case file", f"{p} is a folder; give the path of a .toml case file")
     if not p.is_file():
         raise InputError("case file", f"{p} does not exist")
     try:
-        doc = tomllib.loads(p.read_text())
+        text = p.read_bytes().decode("utf-8")
+    except UnicodeDecodeError as err:
+        raise InputError("case file", f"{p} is not UTF-8 text (byte {err.start}); save it as UTF-8") from None
+    except OSError as err:
+        raise InputError("case file", f"{p} cannot be read: {err.strerror}") from None
+    try:
+        doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as err:
         raise InputError(f"case file {p}", f"not valid TOML: {err}") from None
     return parse_case(doc, str(p))

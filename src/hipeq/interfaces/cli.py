@@ -1,177 +1,354 @@
-"""The ``hipeq`` command line.
+"""The ``hipeq`` command line: reads case files, calls the public API, formats what comes back.
 
-    hipeq run CASE.toml [--json OUT.json]     solve a case file: equilibrium, model comparison, sweep
-    hipeq constant "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
-    hipeq species NAME                        show a species record with its data sources
+    hipeq run CASE.toml [--json F] [--csv F] [--html F] [--figures DIR]   everything the case asks for
+    hipeq compare CASE.toml         ideal gas against real-gas models at the case's conditions
+    hipeq sweep CASE.toml           the case over its [sweep] axes
+    hipeq reaction "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
+    hipeq species NAME              a species record with the source of every datum
+    hipeq keys                      the case-file reference (every table and key)
 
-Exit codes: 0 success, 1 a solve did not converge, 2 bad input (the message names the field).
+Exit codes: 0 every state converged; 1 some state did not converge (marked FAILED in the tables); 2 bad input
+(the message names the case-file table and key, or the option).
 """
 from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
-from collections.abc import Sequence
+import textwrap
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import Any, TextIO
 
 import numpy as np
 
-from hipeq.errors import HipeqError, InputError
+from hipeq.errors import HipeqError, InputError, UnbalancedReactionError, UnknownSpeciesError
+from hipeq.interfaces.sections import (CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, STANDARD_STATE, Section,
+                                       amount_unit, mark, number)
 
-CAUTION = ("Caution: equilibrium is a thermodynamic limit, not a design basis for pressure equipment; "
-           "follow local codes and licensed engineering practice.")
-STANDARD_STATE = "standard state: ideal gas at 1 bar"
+EXIT_OK, EXIT_FAILED_STATE, EXIT_BAD_INPUT = 0, 1, 2
 
-
-def _fmt(x: float) -> str:
-    if x == 0.0:
-        return "0"
-    if 1e-3 <= abs(x) < 1e5:
-        return f"{x:.5g}"
-    return f"{x:.4e}"
-
-
-def _table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
-    widths = [max(len(str(c)) for c in col) for col in zip(header, *rows)]
-    line = lambda cells: "  ".join(str(c).rjust(w) if i else str(c).ljust(w)  # noqa: E731
-                                   for i, (c, w) in enumerate(zip(cells, widths)))
-    rule = "  ".join("-" * w for w in widths)
-    return "\n".join(["  " + line(header), "  " + rule] + ["  " + line(r) for r in rows])
+# solver field -> case-file position, so that an error raised by the API names the key the user wrote
+_CASE_FIELDS = {"T": "[conditions] temperature", "P": "[conditions] pressure", "V": "[conditions] volume",
+                "feed": "[feed]", "species": "[mixture] species", "reactions": "[mixture] reactions",
+                "eos": "[model] eos", "kij": "[model] kij", "volume_translation": "[model] volume_translation",
+                "quantum_hydrogen": "[model] quantum_hydrogen", "hydrogen_omega": "[model] hydrogen_omega",
+                "pure_eos": "[model] pure_eos", "method": "[solver] method", "scheme": "[solver] scheme",
+                "tol": "[solver] tolerance", "max_iterations": "[solver] max_iterations",
+                "models": "[compare] models", "key": "[report] key", "reference": "[compare] reference"}
 
 
-def _system(case, eos: str):
+class CaseError(HipeqError):
+    """An error of the API, re-addressed to the case-file key it came from."""
+
+
+def _in_case(call: Callable[[], Any], where: str | None = None) -> Any:
+    """Run ``call``; an InputError from the API is re-raised naming the case-file table and key."""
+    try:
+        return call()
+    except InputError as err:
+        position = where or _CASE_FIELDS.get(err.field, err.field)
+        raise CaseError(f"{position}: {str(err).removeprefix(err.field + ': ')}") from None
+    except UnknownSpeciesError as err:
+        raise CaseError(f"{where or '[mixture] species'}: {err}") from None
+    except UnbalancedReactionError as err:
+        raise CaseError(f"{where or '[mixture] reactions'}: {err}") from None
+
+
+# ---------------------------------------------------------------------------------------------------------
+# sections built from a case
+# ---------------------------------------------------------------------------------------------------------
+def build_system(case: Any, **model: Any) -> Any:
+    """The case's ReactionSystem (model options from [model], overridden by ``model``)."""
     from hipeq.solvers.system import ReactionSystem
 
-    # the case's k_ij belong to its own model; compared models use their defaults (the ideal gas has none)
-    return ReactionSystem(list(case.species), reactions=list(case.reactions) if case.reactions else None,
-                          eos=eos, kij=(case.kij or None) if eos == case.eos else None,
-                          quantum_hydrogen=case.quantum_hydrogen)
+    options = {**case.model, **model}
+    return _in_case(lambda: ReactionSystem(list(case.species), reactions=list(case.reactions) if case.reactions
+                                           else None, **options))
 
 
-def _solve(system, case, **conditions):
-    if case.V is not None and "P" not in conditions:
-        return system.equilibrium(feed=case.feed, T=conditions.get("T", case.T), V=case.V)
-    return system.equilibrium(feed=case.feed, T=conditions.get("T", case.T), P=conditions.get("P", case.P))
+def _conditions(case: Any) -> dict[str, Any]:
+    return {"V": case.V} if case.V is not None else {"P": case.P}
 
 
-def run_case(path: str, json_out: str | None = None, out=None) -> int:
-    """Solve a case file and print the report; returns the process exit code."""
-    out = out or sys.stdout
+def solve_section(case: Any, system: Any) -> tuple[Section, Any]:
+    """The main equilibrium of the case: reactions, species, status."""
+    result = _in_case(lambda: system.equilibrium(feed=case.feed, T=case.T, **_conditions(case), **case.solver))
+    state_mark = mark(int(result.status), bool(result.liquid_like))
+    fixed = f"V = {number(case.V)} m3 (sealed vessel)" if case.V is not None else f"P = {number(case.P / 1e5)} bar"
+    section = Section(f"Equilibrium at T = {case.T - 273.15:.2f} degC ({case.T:.2f} K), {fixed}",
+                      ["species", "feed [{}]", "equilibrium [{}]", "mole fraction [-]", "phi [-]", "status"])
+    shown = case.report_species or system.species_names
+    unit, scale = amount_unit([case.feed.get(n, 0.0) for n in shown] + [result.amounts[n] for n in shown])
+    section.columns = [c.format(unit) for c in section.columns]
+    ok = result.status == 0
+    for name in shown:
+        section.rows.append([name, number(case.feed.get(name, 0.0) / scale),
+                             number(result.amounts[name] / scale) if ok else "-",
+                             number(result.y[name], 6) if ok else "-", number(result.phi[name]) if ok else "-",
+                             state_mark])
+    section.notes.append(f"model {result.eos}; equilibrium P = {number(result.P / 1e5)} bar; Z = "
+                         f"{number(result.Z)}; method {result.method}; {STANDARD_STATE}")
+    for k, reaction in enumerate(result.reactions):
+        section.notes.append(f"{reaction}: K = {number(result.K[k])}, K_phi = {number(result.K_phi[k])}"
+                             + (f", K_y = {number(result.K_y[k])}" if ok else ""))
+    section.notes.append(result.message)
+    if result.liquid_like:
+        section.notes.append("WARNING: the answer took a liquid-like volume root; a liquid may form and the "
+                             "one-gas answer is doubtful")
+    section.failed = 0 if ok else 1
+    data = result.to_dict()
+    section.data = {"status": int(result.status), "message": result.message, "result": data}
+    return section, result
+
+
+def compare_section(case: Any, system: Any) -> Section:
+    """Ideal gas against real-gas models ([compare]) through :func:`hipeq.compare`."""
+    import hipeq
+
+    options = dict(case.compare or {})
+    kwargs = {k: options[k] for k in ("models", "reference", "tolerance", "relative_tolerance") if k in options}
+    comparison = _in_case(lambda: hipeq.compare(system, case.feed, case.T, key=case.key, **_conditions(case),
+                                                **kwargs))
+    section = Section(f"Ideal gas against real-gas models (key product {comparison.key})",
+                      ["model", f"y {comparison.key} [-]", "deviation [-]", "conversion [-]", "status"])
+    for label, result in comparison.results.items():
+        ok = result.status == 0
+        dev = comparison.deviation.get(label, float("nan"))
+        section.rows.append([label, number(result.y[comparison.key], 6) if ok else "-",
+                             f"{dev:+.5f}" if ok and np.isfinite(dev) else "-",
+                             number(float(comparison.conversion[label])) if ok else "-",
+                             mark(int(result.status), bool(result.liquid_like))])
+        if not ok:
+            section.failed += 1
+            section.notes.append(f"{label}: {result.message}")
+    low, high = comparison.band
+    section.notes.append(f"real-gas band: {number(low, 6)} to {number(high, 6)}")
+    section.notes.append(comparison.verdict)
+    section.data = comparison.to_dict()
+    return section
+
+
+def sweep_section(case: Any, system: Any) -> Section:
+    """The case over its [sweep] axes with the case's model (one or two axes; pressure or volume)."""
+    sweep = case.sweep
+    T_axis = sweep.get("temperature", np.array([case.T]))
+    second = "volume" if "volume" in sweep or case.V is not None else "pressure"
+    S_axis = sweep.get(second, np.array([case.V if second == "volume" else case.P]))
+    TT, SS = np.meshgrid(T_axis, S_axis, indexing="ij")
+    batch = _in_case(lambda: system.equilibrium(feed=case.feed, T=TT, **{second[0].upper(): SS}, **case.solver),
+                     "[sweep]")
+    key = _key(case, system)
+    section = Section(f"Sweep with {system.model.eos}: mole fraction of {key}",
+                      ["T [degC]", "P [bar]" if second == "pressure" else "V [m3]", f"y {key} [-]", "P eq [bar]",
+                       "status"])
+    status, liquid = np.asarray(batch.status), np.asarray(batch.liquid_like)
+    y, P = np.asarray(batch.y[key]), np.asarray(batch.P)
+    grid = TT.shape[0] > 1 and TT.shape[1] > 1
+    if grid:  # two axes: a grid, rows T, columns P (or V); marks in the cells
+        unit = "bar" if second == "pressure" else "m3"
+        section.title += f" (rows T, columns {second})"
+        section.columns = ["T [degC]"] + [f"{number(v / 1e5 if second == 'pressure' else v)} {unit}"
+                                          for v in S_axis]
+        for i in range(TT.shape[0]):
+            cells = [f"{T_axis[i] - 273.15:.2f}"]
+            for j in range(TT.shape[1]):
+                value = f"{y[i, j]:.4f}" if y[i, j] >= 1e-3 else number(y[i, j], 3)
+                cells.append(MARK_FAILED if status[i, j] else value + ("*" if liquid[i, j] else ""))
+            section.rows.append(cells)
+        section.notes.append(f"{MARK_FAILED}: did not converge; *: {MARK_LIQUID} root (a liquid may form)")
+    for i in range(0 if grid else TT.shape[0]):
+        for j in range(TT.shape[1]):
+            ok = status[i, j] == 0
+            value = SS[i, j] / 1e5 if second == "pressure" else SS[i, j]
+            section.rows.append([f"{TT[i, j] - 273.15:.2f}", number(value), number(y[i, j], 6) if ok else "-",
+                                 number(P[i, j] / 1e5) if ok else "-", mark(int(status[i, j]), bool(liquid[i, j]))])
+    section.failed = int(np.count_nonzero(status))
+    for flat in np.flatnonzero(status.ravel())[:3]:
+        section.notes.append(f"state {flat}: {batch.message(int(flat))}")
+    section.data = {"key": key, "T [K]": TT.tolist(), ("P [Pa]" if second == "pressure" else "V [m3]"): SS.tolist(),
+                    f"y_{key} [-]": np.where(status == 0, y, np.nan).tolist(), "status": status.tolist(),
+                    "P_equilibrium [Pa]": P.tolist()}
+    return section
+
+
+def _key(case: Any, system: Any) -> str:
+    from hipeq.analysis._common import key_product
+
+    return key_product(system, system.feed_vector(case.feed), case.key)
+
+
+# ---------------------------------------------------------------------------------------------------------
+# commands
+# ---------------------------------------------------------------------------------------------------------
+def _check_outputs(paths: Sequence[str | None]) -> None:
+    """Refuse output paths that cannot be written, before any solving."""
+    for path in paths:
+        if not path:
+            continue
+        p = Path(path)
+        if p.is_dir():
+            raise InputError("output", f"{p} is a folder; give a file name")
+        if not p.parent.exists():
+            raise InputError("output", f"folder {p.parent} does not exist; create it first")
+        if not os.access(p.parent, os.W_OK):
+            raise InputError("output", f"folder {p.parent} is not writable")
+
+
+def _print_sections(sections: Sequence[Section], header: str, out: TextIO) -> None:
+    print(header, file=out)
+    for section in sections:
+        print("", file=out)
+        print(section.text(), file=out)
+    print("", file=out)
+    lines = [LEGEND]
+    failed = sum(s.failed for s in sections)
+    if failed:
+        lines.append(f"{failed} state(s) {MARK_FAILED}: their values are not shown; exit code 1")
+    lines.append(CAUTION)
+    for line in lines:
+        print(textwrap.fill(line, width=110, initial_indent="  ", subsequent_indent="    "), file=out)
+
+
+def _write_json(path: str | None, case: Any, sections: Sequence[Section]) -> None:
+    if not path:
+        return
+    payload = {"case": case.title, "case_file": case.path, "standard_state": STANDARD_STATE, "caution": CAUTION,
+               "units": "SI unless a key says otherwise: K, Pa, m3, mol, J",
+               "sections": {s.title: s.data for s in sections}}
+    Path(path).write_text(json.dumps(payload, indent=2, default=_json_default))
+
+
+def _json_default(value: Any) -> Any:
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    if isinstance(value, (np.floating, np.integer, np.bool_)):
+        return value.item()
+    return str(value)
+
+
+def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
+             only: Sequence[str] | None = None, html_out: str | None = None) -> int:
+    """Solve a case file and print its report; returns the exit code. ``only``: the job tables to run (default:
+    every table the case holds); ``json_out``, ``html_out``: files to write (checked before any solving)."""
     from hipeq.interfaces.casefile import load_case
 
-    case = load_case(path)
-    system = _system(case, case.eos)
-    result = _solve(system, case)
-    print(f"hipeq | {case.title}", file=out)
-    fixed = f"V = {case.V:.6g} m3" if case.V is not None else f"P = {case.P / 1e5:.6g} bar"
-    print(f"  T = {case.T - 273.15:.2f} degC ({case.T:.2f} K), {fixed}, equilibrium P = "
-          f"{result.P / 1e5:.6g} bar | model {case.eos}"
-          f"{' (quantum H2)' if case.quantum_hydrogen else ''} | {STANDARD_STATE}", file=out)
-    status = "converged" if result.converged else f"NOT CONVERGED: {result.message}"
-    print(f"  solve: {status} in {result.iterations} iterations", file=out)
-    print("", file=out)
-    rrows = [[str(r), _fmt(result.K[i]), _fmt(result.K_phi[i]), _fmt(result.K_y[i])]
-             for i, r in enumerate(system.reactions)]
-    print(_table(["reaction", "K", "K_phi", "K_y"], rrows), file=out)
-    print("", file=out)
-    srows = []
-    for name in system.species_names:
-        srows.append([name, _fmt(case.feed.get(name, 0.0)), _fmt(result.amounts[name]),
-                      f"{result.y[name]:.6f}", f"{result.phi[name]:.5f}"])
-    print(_table(["species", "feed / mol", "equilibrium / mol", "mole fraction", "phi"], srows), file=out)
-
-    compare = [m for m in case.compare_models]
-    report: dict = {"case": case.title, "result": result.to_dict(), "comparison": {}, "sweep": None}
-    if compare:
-        print("", file=out)
-        print("  Model comparison at the same conditions (equilibrium mole fractions):", file=out)
-        shown = list(system.species_names)
-        crow = []
-        for model in compare:
-            res = result if model == case.eos else _solve(_system(case, model), case)
-            report["comparison"][model] = {n: res.y[n] for n in shown}
-            crow.append([model] + [f"{res.y[n]:.5f}" for n in shown] + [f"{res.P / 1e5:.5g}"])
-        print(_table(["model"] + shown + ["P / bar"], crow), file=out)
-    if case.sweep_T is not None and case.sweep_P is not None and case.V is None:
-        products = _products(system)
-        key = products[0] if products else system.species_names[0]
-        TT, PP = np.meshgrid(case.sweep_T, case.sweep_P, indexing="ij")
-        batch = system.equilibrium(feed=case.feed, T=TT.ravel(), P=PP.ravel())
-        grid = np.asarray(batch.y[key]).reshape(TT.shape)
-        ok = np.asarray(batch.converged).reshape(TT.shape)
-        print("", file=out)
-        print(f"  Sweep with {case.eos}: equilibrium mole fraction of {key} (rows T, columns P)", file=out)
-        header = ["T / degC"] + [f"{p / 1e5:.4g} bar" for p in case.sweep_P]
-        rows = [[f"{t - 273.15:.1f}"] + [f"{grid[i, j]:.4f}" if ok[i, j] else "failed"
-                                         for j in range(len(case.sweep_P))]
-                for i, t in enumerate(case.sweep_T)]
-        print(_table(header, rows), file=out)
-        report["sweep"] = {"species": key, "T": case.sweep_T.tolist(), "P": case.sweep_P.tolist(),
-                           "y": grid.tolist()}
-    print("", file=out)
-    print("  " + CAUTION, file=out)
-    if json_out:
-        report["caution"] = CAUTION
-        with open(json_out, "w") as fh:
-            json.dump(report, fh, indent=2, default=float)
-    return 0 if result.converged else 1
-
-
-def _products(system) -> list[str]:
-    """Species formed by the system's reactions, in reaction order (the sweep reports the first)."""
-    return [s for r in system.reactions for s, c in r.coefficients.items() if c > 0]
-
-
-def show_constant(reaction: str, t_from: str, t_to: str, count: int, out=None) -> int:
-    """Print K(T) of a reaction from Cp integrals and the constant-enthalpy van 't Hoff approximation."""
     out = out or sys.stdout
+    _check_outputs([json_out, html_out])
+    case = load_case(path)
+    system = build_system(case)
+    main_section, result = solve_section(case, system)
+    sections = [main_section]
+    jobs = {"compare": compare_section, "sweep": sweep_section}
+    for name in (only or case.tables()):
+        if name not in case.tables():
+            raise CaseError(f"[{name}]: the case has no [{name}] table (see `hipeq keys`)")
+        if name in jobs:
+            sections.append(jobs[name](case, system))
+    header = f"hipeq | {case.title} | model {case.eos} | {STANDARD_STATE}"
+    _print_sections(sections, header, out)
+    _write_json(json_out, case, sections)
+    if html_out:
+        from hipeq.interfaces.report import write_report
+
+        print(f"  report written to {write_report(html_out, case, result, sections)}", file=out)
+    return EXIT_FAILED_STATE if any(s.failed for s in sections) else EXIT_OK
+
+
+def show_reaction(reaction: str, t_from: str, t_to: str, count: int, out: TextIO | None = None) -> int:
+    """Print K(T) of a reaction from Cp integrals and the constant-enthalpy van 't Hoff approximation."""
     from hipeq.data.thermochem import equilibrium_constant
     from hipeq.units import parse_quantity
 
-    if count < 2:
-        raise InputError("--count", "must be >= 2")
-    T = np.linspace(parse_quantity(t_from, "temperature"), parse_quantity(t_to, "temperature"), count)
-    k = equilibrium_constant(reaction, T)
-    kv = equilibrium_constant(reaction, T, method="van-t-hoff")
-    print(f"hipeq | K(T) of {reaction} | {STANDARD_STATE}", file=out)
-    rows = [[f"{t - 273.15:.1f}", f"{t:.2f}", _fmt(a), _fmt(b), f"{100 * (b / a - 1):+.2f}"]
-            for t, a, b in zip(T, k, kv)]
-    print(_table(["T / degC", "T / K", "K (Cp integral)", "K (van 't Hoff)", "diff / %"], rows), file=out)
-    return 0
-
-
-def show_species(name: str, out=None) -> int:
-    """Print one species record with the source of every datum."""
     out = out or sys.stdout
+    if not 2 <= count <= 10_000:
+        raise InputError("--count", f"must be from 2 to 10000, got {count}")
+    T = np.linspace(parse_quantity(t_from, "temperature", "--from"), parse_quantity(t_to, "temperature", "--to"),
+                    count)
+    try:
+        k = equilibrium_constant(reaction, T)
+        kv = equilibrium_constant(reaction, T, method="van-t-hoff")
+    except InputError as err:
+        if err.field == "T":  # the API's advice (extrapolate=True) is for Python users
+            raise InputError("--from/--to", str(err).split(": ", 1)[-1].split("; pass extrapolate")[0]
+                             + "; choose temperatures inside that range") from None
+        raise InputError("reaction", str(err)) from None
+    print(f"hipeq | K(T) of {reaction} | {STANDARD_STATE}", file=out)
+    rows = [[f"{t - 273.15:.1f}", f"{t:.2f}", number(a), number(b), f"{100 * (b / a - 1):+.2f}"]
+            for t, a, b in zip(T, k, kv)]
+    section = Section("", ["T [degC]", "T [K]", "K (Cp integral) [-]", "K (van 't Hoff) [-]", "difference [%]"],
+                      rows)
+    print(section.text().split("\n", 2)[2], file=out)
+    return EXIT_OK
+
+
+def show_species(name: str, out: TextIO | None = None) -> int:
+    """Print one species record with the source of every datum."""
     from hipeq.data.species import species
 
-    s = species(name)
+    out = out or sys.stdout
+    s = _in_case(lambda: species(name), "species")
+    get = s.sources.get
     rows = [["name", s.name, ""], ["common name", s.common_name, ""], ["formula", s.formula, ""],
-            ["CAS", s.cas, ""], ["molar mass / (g/mol)", f"{s.molar_mass * 1e3:.4f}", s.sources.get("molar_mass", "")],
-            ["Tc / K", f"{s.Tc:.3f}", s.sources.get("Tc", "")], ["Pc / bar", f"{s.Pc / 1e5:.4f}", s.sources.get("Pc", "")],
-            ["acentric factor", f"{s.omega:.4f}", s.sources.get("omega", "")],
-            ["Hf(298.15 K) / (kJ/mol)", f"{s.Hf / 1e3:.3f}", s.sources.get("Hf", "")],
-            ["Gf(298.15 K) / (kJ/mol)", f"{s.Gf / 1e3:.3f}", s.sources.get("Gf", "")],
-            ["S0(298.15 K) / (J/mol/K)", f"{s.S0:.3f}", s.sources.get("S0", "")],
-            ["Cp range / K", f"{s.cp.T_min:.0f} - {s.cp.T_max:.0f}", s.sources.get("cp", "")]]
-    print(_table(["field", "value", "source"], rows), file=out)
-    return 0
+            ["CAS", s.cas, ""], ["molar mass [g/mol]", f"{s.molar_mass * 1e3:.4f}", get("molar_mass", "")],
+            ["Tc [K]", f"{s.Tc:.3f}", get("Tc", "")], ["Pc [bar]", f"{s.Pc / 1e5:.4f}", get("Pc", "")],
+            ["acentric factor [-]", f"{s.omega:.4f}", get("omega", "")],
+            ["Hf(298.15 K) [kJ/mol]", f"{s.Hf / 1e3:.3f}", get("Hf", "")],
+            ["Gf(298.15 K) [kJ/mol]", f"{s.Gf / 1e3:.3f}", get("Gf", "")],
+            ["S0(298.15 K) [J/(mol K)]", f"{s.S0:.3f}", get("S0", "")],
+            ["Cp range [K]", f"{s.cp.T_min:.0f} - {s.cp.T_max:.0f}", get("cp", "")]]
+    print(Section("", ["field", "value", "source"], rows).text().split("\n", 2)[2], file=out)
+    return EXIT_OK
+
+
+def show_keys(out: TextIO | None = None) -> int:
+    """Print the case-file reference."""
+    from hipeq.interfaces.schema import markdown
+
+    print(markdown(), file=out or sys.stdout, end="")
+    return EXIT_OK
+
+
+EXAMPLES = {
+    "run": "hipeq run examples/demo_plant.toml --json out.json",
+    "compare": "hipeq compare examples/demo_plant.toml",
+    "sweep": "hipeq sweep examples/demo_plant.toml",
+    "reaction": 'hipeq reaction "CO + 2 H2 = CH3OH" --from "200 degC" --to "300 degC" --count 5',
+    "species": "hipeq species methanol",
+    "keys": "hipeq keys > casefile.md",
+}
 
 
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser of the ``hipeq`` command."""
-    parser = argparse.ArgumentParser(prog="hipeq", description="Gas-phase reaction equilibrium at high pressure "
-                                     "with real-gas fugacity corrections.", epilog=CAUTION)
-    sub = parser.add_subparsers(dest="command", required=True)
-    run = sub.add_parser("run", help="solve a TOML case file")
-    run.add_argument("case", help="path of the case file")
-    run.add_argument("--json", dest="json_out", help="also write the results to this JSON file")
-    const = sub.add_parser("constant", help="equilibrium constant of a reaction over a temperature range")
-    const.add_argument("reaction", help='e.g. "N2 + 3 H2 = 2 NH3"')
-    const.add_argument("--from", dest="t_from", default="300 degC", help='start temperature, e.g. "300 degC"')
-    const.add_argument("--to", dest="t_to", default="600 degC", help='end temperature, e.g. "600 degC"')
-    const.add_argument("--count", type=int, default=7, help="number of temperatures")
-    spec = sub.add_parser("species", help="show a species record and its data sources")
-    spec.add_argument("name")
+    from hipeq import __version__
+
+    parser = argparse.ArgumentParser(prog="hipeq", description="Reaction equilibrium of gas mixtures at high "
+                                     "pressure with real-gas fugacity corrections (" + STANDARD_STATE + ").",
+                                     epilog=CAUTION)
+    parser.add_argument("--version", action="version", version=f"hipeq {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    def command(name: str, help: str) -> argparse.ArgumentParser:
+        return sub.add_parser(name, help=help, description=help, epilog=f"example: {EXAMPLES[name]}",
+                              formatter_class=argparse.RawDescriptionHelpFormatter)
+
+    for name, help in (("run", "solve a case file: the equilibrium and every job table it holds"),
+                       ("compare", "ideal gas against real-gas models at the case's conditions ([compare])"),
+                       ("sweep", "the case over the axes of its [sweep] table")):
+        p = command(name, help)
+        p.add_argument("case", help="path of the TOML case file (see `hipeq keys`)")
+        p.add_argument("--json", dest="json_out", metavar="FILE", help="also write the results (SI, units in keys)")
+        p.add_argument("--html", dest="html_out", metavar="FILE", help="also write a one-page HTML report")
+    p = command("reaction", "standard-state thermochemistry of a reaction: K(T) over a temperature range")
+    p.add_argument("reaction", help='e.g. "N2 + 3 H2 = 2 NH3"')
+    p.add_argument("--from", dest="t_from", default="300 degC", help='first temperature, e.g. "300 degC"')
+    p.add_argument("--to", dest="t_to", default="600 degC", help='last temperature, e.g. "600 degC"')
+    p.add_argument("--count", type=int, default=7, help="number of temperatures (2-10000)")
+    p = command("species", "a species record and the source of each datum")
+    p.add_argument("name", help="name, formula or CAS number")
+    command("keys", "print the case-file reference: every table and key, with units")
     return parser
 
 
@@ -179,14 +356,21 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``hipeq`` command; returns the exit code."""
     args = build_parser().parse_args(argv)
     try:
-        if args.command == "run":
-            return run_case(args.case, args.json_out)
-        if args.command == "constant":
-            return show_constant(args.reaction, args.t_from, args.t_to, args.count)
-        return show_species(args.name)
+        if args.command in ("run", "compare", "sweep"):
+            only = None if args.command == "run" else [args.command]
+            return run_case(args.case, args.json_out, only=only, html_out=args.html_out)
+        if args.command == "reaction":
+            return show_reaction(args.reaction, args.t_from, args.t_to, args.count)
+        if args.command == "species":
+            return show_species(args.name)
+        return show_keys()
     except HipeqError as err:
         print(f"hipeq: error: {err}", file=sys.stderr)
-        return 2
+        return EXIT_BAD_INPUT
+    except BrokenPipeError:  # the reader went away (e.g. `hipeq run case.toml | head`): stop quietly
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return EXIT_OK
 
 
 if __name__ == "__main__":  # pragma: no cover
