@@ -13,7 +13,7 @@ import pytest
 
 import hipeq
 from hipeq.models._kernels import OMEGA_A, OMEGA_B, R, tparams_into
-from hipeq.solvers._common import MAX_VERTICES
+from hipeq.solvers._common import make_work
 from hipeq.solvers._driver import several_roots_possible
 
 SYSTEMS = {
@@ -31,12 +31,10 @@ def _bound(system: hipeq.ReactionSystem, T: float, n0: np.ndarray) -> tuple[bool
     aij, bi = np.zeros((nc, nc)), np.zeros(nc)
     tparams_into(arrays.model_code, T, arrays.components, arrays.model_constants, arrays.kij, aij, bi,
                  np.zeros((nc, nc)), np.zeros(nc))
-    big = nc + arrays.elements.shape[0] + 1
+    work = make_work(nc, arrays.nu.shape[0], arrays.elements.shape[0])
     flag = several_roots_possible(arrays.model_code, T, aij, bi, arrays.model_constants,
                                   patterns.gibbs_active[pat], n0, patterns.gibbs_null[pat],
-                                  int(patterns.gibbs_null_rank[pat]), pat, np.zeros((big, big)), np.zeros(big),
-                                  np.zeros(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64),
-                                  np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+                                  int(patterns.gibbs_null_rank[pat]), pat, work)
     null = patterns.gibbs_null[pat][:, :int(patterns.gibbs_null_rank[pat])]
     return bool(flag), aij, bi, null
 
@@ -94,18 +92,17 @@ def test_kept_vertices_give_the_fresh_answer_at_every_temperature() -> None:
     n0 = np.array([0.1, 0.3, 0.4, 0.05, 0.1, 0.0, 0.05])
     key = int(sum(1 << i for i in range(7) if n0[i] > 0))
     patterns, (pat,), _ = system.compiled.patterns_for([key])
-    nc, big = 7, 7 + arrays.elements.shape[0] + 1
-    kept = (np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+    nc, nr, ne = 7, arrays.nu.shape[0], arrays.elements.shape[0]
+    kept = make_work(nc, nr, ne)
     answers = set()
     for T in np.linspace(300.0, 900.0, 25):
         aij, bi = np.zeros((nc, nc)), np.zeros(nc)
         tparams_into(arrays.model_code, T, arrays.components, arrays.model_constants, arrays.kij, aij, bi,
                      np.zeros((nc, nc)), np.zeros(nc))
         args = (arrays.model_code, T, aij, bi, arrays.model_constants, patterns.gibbs_active[pat], n0,
-                patterns.gibbs_null[pat], int(patterns.gibbs_null_rank[pat]), pat, np.zeros((big, big)),
-                np.zeros(big), np.zeros(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64))
-        reused = several_roots_possible(*args, *kept)
-        fresh = several_roots_possible(*args, np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+                patterns.gibbs_null[pat], int(patterns.gibbs_null_rank[pat]), pat)
+        reused = several_roots_possible(*args, kept)
+        fresh = several_roots_possible(*args, make_work(nc, nr, ne))
         assert reused == fresh, T
         answers.add(bool(fresh))
-    assert answers == {True, False} and kept[1][1] == 1  # both sides met; the vertices were kept
+    assert answers == {True, False} and kept.vertex_info[1] == 1  # both sides met; the vertices were kept

@@ -12,6 +12,7 @@ with g0_i = G0_i(T) / (R T) (Smith & Missen 1982, "Chemical Reaction Equilibrium
 from __future__ import annotations
 
 import math
+from typing import NamedTuple
 
 import numpy as np
 
@@ -58,37 +59,81 @@ TINY = 1e-300
 LOG_TINY = math.log(TINY)
 
 # ---------------------------------------------------------------------------------------------------------
-# packed work buffers (a few arrays rather than many: every array crossing a compiled call boundary costs
-# reference-count operations, so the kernels pass these and index rows by the constants below)
+# work buffers of a chunk of states: one named tuple (numba passes it as one argument), one array per role
 # ---------------------------------------------------------------------------------------------------------
-# F (N_F_ROWS, nc): per-species vectors
-F_N, F_N_TRY, F_Y, F_Y_TRY, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_DN, F_R, F_G0, F_N_PREV, F_N0_PREV, F_BI, \
-    F_DBI, F_SCRATCH, _, _, F_G0_PREV = range(19)
-# F[F_SCRATCH : F_SCRATCH + 3] is the (3, nc) scratch of the model kernels; F[F_SCRATCH + 2, 0] keeps the last
-# cubic root, the start for the next one
-N_F_ROWS = 19
-# J (4, nc, nc)
-J_JAC, J_JAC_TRY, J_AIJ, J_DAIJ = range(4)
-# S (N_S_ROWS, k), k = max(n_reactions, n_element_rows, 1): small vectors
-S_GRAD, S_RHS, S_D, S_SCALE, S_LAM, S_B, S_EBAL, S_XI, S_LNK, S_XI_PREV, S_XI_START, S_AUX, S_ESCALE = range(13)
-N_S_ROWS = 13  # S[S_AUX, 0]: ln(P/P0) of the previous converged state; S_ESCALE: per-element-row scales
-# SM (4, k, k): Newton matrix, its Cholesky factor, and the reduced ln phi Jacobian W^T J W (current, trial)
-SM_H, SM_L, SM_M, SM_M_TRY = range(4)
-# KV (2, nc + ne + 1) and IV (2, nc + ne + 1): the Newton system of the Gibbs minimisation
-KV_RHS, KV_SOL = range(2)
-IV_IDX, IV_PIV = range(2)
+class Work(NamedTuple):
+    """Work buffers of one chunk of states, allocated once per chunk by :func:`make_work` (nc species, k =
+    max(n_reactions, n_element_rows, 1), big = nc + ne + 1). Kept between states of a chunk: ``n_prev``,
+    ``n0_prev``, ``g0_prev``, ``extents_prev``, ``ln_p_prev`` (the last converged state, for warm starts),
+    ``model_scratch[2, 0]`` (the last cubic root, the start of the next) and ``vertices``/``vertex_info`` (the
+    feed polytope of the last feed; see ``_driver.several_roots_possible``)."""
+
+    # per species (nc,)
+    n: np.ndarray              # amounts of the current iterate [mol]
+    n_try: np.ndarray          # amounts of a trial step
+    y: np.ndarray              # mole fractions of the current iterate
+    y_try: np.ndarray
+    ln_phi: np.ndarray         # ln fugacity coefficients at the current iterate
+    ln_phi_try: np.ndarray
+    mu: np.ndarray             # chemical potentials / RT
+    mu_try: np.ndarray
+    dn: np.ndarray             # Newton step in the amounts
+    species_residuals: np.ndarray  # Gibbs: mu_i - sum_e A_ei lambda_e per species
+    g0: np.ndarray             # standard Gibbs energies / RT at T
+    n_prev: np.ndarray         # last converged answer of the chunk (warm starts)
+    n0_prev: np.ndarray        # its feed
+    g0_prev: np.ndarray        # its g0
+    b_i: np.ndarray            # co-volumes at T [m3/mol]
+    db_i_dT: np.ndarray
+    model_scratch: np.ndarray  # (3, nc) scratch of the model kernels; [2, 0] keeps the last cubic root
+    # per species pair (nc, nc)
+    jac: np.ndarray            # n_T d ln phi_i / d n_j
+    jac_try: np.ndarray
+    a_ij: np.ndarray           # cubic attraction parameters at T
+    da_ij_dT: np.ndarray
+    # per reaction or element row (k,)
+    grad: np.ndarray           # gradient of G/RT in the reduced extents
+    rhs: np.ndarray
+    step: np.ndarray
+    scale: np.ndarray          # Jacobi scaling of the Cholesky factor
+    potentials: np.ndarray     # element potentials lambda_e (Gibbs)
+    element_totals: np.ndarray  # b_e = sum_i A_ei n0_i
+    element_balance: np.ndarray
+    element_scale: np.ndarray  # per element row: max(|b_e|, ELEMENT_ATOL * total)
+    extents: np.ndarray        # extents of reaction of the current iterate [mol]
+    ln_k: np.ndarray           # ln K at T
+    extents_prev: np.ndarray
+    extents_start: np.ndarray  # the last good start of a sealed-vessel pressure step
+    ln_p_prev: np.ndarray      # (1,) ln(P/P0) of the last converged state
+    # (k, k)
+    hessian: np.ndarray        # Newton matrix in the reduced extents
+    factor: np.ndarray         # its Cholesky factor
+    reduced_jac: np.ndarray    # W^T (n_T d ln phi/d n) W
+    reduced_jac_try: np.ndarray
+    # the Gibbs minimisation's Newton system (big = nc + ne + 1)
+    kkt: np.ndarray            # (big, big)
+    kkt_rhs: np.ndarray        # (big,)
+    kkt_solution: np.ndarray   # (big,)
+    kkt_index: np.ndarray      # (big,) int64: active species positions
+    pivots: np.ndarray         # (big,) int64
+    # the feed polytope of the last feed
+    vertices: np.ndarray       # (MAX_VERTICES + 1, nc): row 0 the feed, then the vertices
+    vertex_info: np.ndarray    # (3,) int64: count, valid, pattern
 
 
 @entry
 def make_work(nc, nr, ne):
-    """Work buffers of one chunk of states: (F, J, S, SM, M, KV, IV, VX, VI), see the row constants above; VX
-    (MAX_VERTICES + 1, nc) and VI (3,) keep the vertices of the last feed's feasible polytope (row 0: that feed;
-    VI: count, valid, pattern), see ``hipeq.solvers._driver.several_roots_possible``."""
+    """New :class:`Work` buffers for systems of nc species, nr reactions and ne element rows (zeros)."""
     k = max(nr, ne, 1)
     big = nc + ne + 1
-    return (np.zeros((N_F_ROWS, nc)), np.zeros((4, nc, nc)), np.zeros((N_S_ROWS, k)), np.zeros((4, k, k)),
-            np.zeros((big, big)), np.zeros((2, big)), np.zeros((2, big), dtype=np.int64),
-            np.zeros((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
+    z = np.zeros
+    return Work(z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc), z(nc),
+                z(nc), z(nc), z((3, nc)),
+                z((nc, nc)), z((nc, nc)), z((nc, nc)), z((nc, nc)),
+                z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(k), z(1),
+                z((k, k)), z((k, k)), z((k, k)), z((k, k)),
+                z((big, big)), z(big), z(big), np.zeros(big, dtype=np.int64), np.zeros(big, dtype=np.int64),
+                z((MAX_VERTICES + 1, nc)), np.zeros(3, dtype=np.int64))
 
 
 # ---------------------------------------------------------------------------------------------------------

@@ -47,15 +47,12 @@ from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODE
 from hipeq.models.inputs import P_MAX
 from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, METHOD, METHOD_EXTENT, METHOD_GIBBS, OUTER,
                                    REASON, ROOT, STATUS, Options, PatternArrays, SystemArrays, answer_layout)
-from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, STALLED, F_SCRATCH, F_BI, F_DBI, F_G0, F_G0_PREV, F_LNPHI, F_MU,
-                                   F_N, F_N0_PREV, F_N_PREV, F_Y, INVALID_INPUT, J_AIJ, J_DAIJ, NO_PHYSICAL_STATE,
+from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, INVALID_INPUT, MAX_VERTICES, NO_PHYSICAL_STATE,
                                    OUTSIDE_MODEL_RANGE, PRESSURE_NOT_FOUND, REASON_ABOVE_CEILING,
                                    REASON_BELOW_COVOLUME, REASON_BELOW_FLOOR, REASON_ELEMENTS,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
-                                   REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, S_AUX, S_D, S_LNK, S_RHS, S_SCALE,
-                                   S_XI, S_XI_PREV, S_XI_START, SINGULAR, SM_L, adjust_g0, element_residuals,
-                                   MAX_VERTICES, g0_into, make_work, lu_solve, KV_RHS, KV_SOL, IV_IDX,
-                                   IV_PIV)
+                                   REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, SINGULAR, STALLED, adjust_g0,
+                                   element_residuals, g0_into, lu_solve, make_work)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
@@ -78,7 +75,7 @@ START_COLD = 2
 
 
 @kernel
-def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, M, rhs, x, idx, piv, VX, VI):
+def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, w):
     """True when the cubic could have three volume roots at T [K] for some composition the feed ``n0`` can reach
     (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the active
     species).
@@ -89,10 +86,11 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
     critical condition; Michelsen & Mollerup 2007, ch. 3). So three roots need sum_i n_i (c r_i - L) >= 0 with
     r_i = a_i / (b_i R T) and L = Omega_a / Omega_b; that linear function is largest at a vertex of the feasible
     polytope. The vertices (n_null of the amounts at zero) depend on the feed only, not on T: they are enumerated
-    once per feed and pattern and kept in VX / VI (row 0 of VX the feed; VI = count, valid, pattern), so a chunk
+    once per feed and pattern and kept in ``w.vertices`` / ``w.vertex_info`` (row 0 of the vertices the feed;
+    vertex_info = count, valid, pattern), so a chunk
     of states with one feed pays the enumeration once. Past MAX_VERTICES candidate sets the answer is True (the
-    safe side). Always False for the other models (one root per state). ``M``, ``rhs``, ``x``, ``idx``,
-    ``piv`` are scratch."""
+    safe side). Always False for the other models (one root per state). The Gibbs Newton buffers of ``w``
+    serve as scratch."""
     if code != MODEL_CUBIC:
         return False
     nc = bi.shape[0]
@@ -107,20 +105,21 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
     feed = 0.0
     for i in range(nc):
         if active[i] and bi[i] > 0.0:
-            w = c * aij[i, i] / (bi[i] * R * T) - limit
-            top = max(top, w)
-            feed += n0[i] * w
+            weight = c * aij[i, i] / (bi[i] * R * T) - limit
+            top = max(top, weight)
+            feed += n0[i] * weight
     if top < 0.0:
         return False  # no active species is below its (kij-widened) critical temperature
     if feed >= 0.0 or n_null == 0:
         return feed >= 0.0
+    VX, VI = w.vertices, w.vertex_info
     same = VI[1] == 1 and VI[2] == pat
     if same:
         for i in range(nc):
             if VX[0, i] != n0[i]:
                 same = False
                 break
-    if not same and not _polytope_vertices(active, n0, null, n_null, M, rhs, x, idx, piv, VX, VI):
+    if not same and not _polytope_vertices(active, n0, null, n_null, w):
         return True  # too many candidate vertices to enumerate: the safe side
     VI[2] = pat
     for v in range(1, VI[0] + 1):
@@ -134,11 +133,14 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
 
 
 @kernel
-def _polytope_vertices(active, n0, null, n_null, M, rhs, x, idx, piv, VX, VI):
+def _polytope_vertices(active, n0, null, n_null, w):
     """The vertices of {n = n0 + null t >= 0} (every set of n_null active species at zero whose solution is
-    feasible) into VX[1:], the feed into VX[0], their count into VI[0] and VI[1] = 1; False (VI[1] = 0) when
+    feasible) into vertices[1:], the feed into vertices[0], their count into vertex_info[0] and vertex_info[1] = 1;
+    False (vertex_info[1] = 0) when
     there are more candidate sets than MAX_VERTICES."""
     nc = n0.shape[0]
+    VX, VI = w.vertices, w.vertex_info
+    M, rhs, x, idx, piv = w.kkt, w.kkt_rhs, w.kkt_solution, w.kkt_index, w.pivots
     VI[1] = 0
     VI[0] = 0
     m = 0
@@ -198,7 +200,7 @@ def _polytope_vertices(active, n0, null, n_null, M, rhs, x, idx, piv, VX, VI):
 
 
 @kernel
-def _cold_start(n0, active, direction, xdir, nr, fraction, F, S):
+def _cold_start(n0, active, direction, xdir, nr, fraction, w):
     """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps ``fraction`` of the largest step keeping
     n >= 0 (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
     nc = n0.shape[0]
@@ -213,13 +215,13 @@ def _cold_start(n0, active, direction, xdir, nr, fraction, F, S):
         v = n0[i] + eps * direction[i] if active[i] else 0.0
         if active[i] and not (v > 0.0):
             v = 1e-300
-        F[F_N, i] = v
+        w.n[i] = v
     for r in range(nr):
-        S[S_XI, r] = eps * xdir[r]
+        w.extents[r] = eps * xdir[r]
 
 
 @kernel
-def _start_from_extents(n0, nu, active, F, S):
+def _start_from_extents(n0, nu, active, w):
     """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
     nc = n0.shape[0]
     nr = nu.shape[0]
@@ -227,35 +229,35 @@ def _start_from_extents(n0, nu, active, F, S):
     for i in range(nc):
         v = n0[i]
         for r in range(nr):
-            v += nu[r, i] * S[S_XI, r]
-        F[F_N, i] = v if active[i] else 0.0
+            v += nu[r, i] * w.extents[r]
+        w.n[i] = v if active[i] else 0.0
         total += abs(v)
     for i in range(nc):
-        if active[i] and not (F[F_N, i] > 1e-14 * total):
+        if active[i] and not (w.n[i] > 1e-14 * total):
             return False
     return True
 
 
 @inline_kernel
 def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
-                       max_iter, F, J, S, SM, M, KV, IV):
+                       max_iter, w):
     ln_p = math.log(P) - LN_P_STANDARD
     if method == METHOD_EXTENT:
-        return extent_solve(code, T, P, ln_p, F[F_G0], W, Zb, neff, active, S[S_XI], J[J_AIJ], F[F_BI], consts,
-                            coupled, tol, max_iter, F, J, S, SM)
-    return gibbs_solve(code, T, P, ln_p, n0, F[F_G0], Q, neq, Nb, n_null, active, J[J_AIJ], F[F_BI], consts,
-                       coupled, tol_g, max_iter, F, J, S, SM, M, KV, IV)
+        return extent_solve(code, T, P, ln_p, w.g0, W, Zb, neff, active, w.extents, w.a_ij, w.b_i, consts,
+                            coupled, tol, max_iter, w)
+    return gibbs_solve(code, T, P, ln_p, n0, w.g0, Q, neq, Nb, n_null, active, w.a_ij, w.b_i, consts,
+                       coupled, tol_g, max_iter, w)
 
 
 @kernel
-def _boundary_reason(code, at_ceiling, V, n_t, F):
+def _boundary_reason(code, at_ceiling, V, n_t, w):
     """Why a sealed-vessel search ended at a pressure limit."""
     if not at_ceiling:
         return REASON_BELOW_FLOOR
     if code == MODEL_CUBIC:
         b = 0.0
-        for i in range(F.shape[1]):
-            b += F[F_Y, i] * F[F_BI, i]
+        for i in range(w.y.shape[0]):
+            b += w.y[i] * w.b_i[i]
         if V <= n_t * b:
             return REASON_BELOW_COVOLUME
     return REASON_ABOVE_CEILING
@@ -263,11 +265,11 @@ def _boundary_reason(code, at_ceiling, V, n_t, F):
 
 @kernel
 def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
-                     tol, tol_g, tol_v, max_iter, F, J, S, SM, M, KV, IV):
+                     tol, tol_g, tol_v, max_iter, w):
     """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
     (status, reason, iterations, outer, n_T, Z, root, P)."""
     nc = n0.shape[0]
-    nr = S.shape[1]
+    nr = w.extents.shape[0]
     s_floor = math.log(P_FLOOR)
     s_ceiling = math.log(P_CEILING)
     s = math.log(P_guess) if P_guess > 0.0 else s_floor
@@ -286,9 +288,9 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     ln_v = math.log(V)
     # remember the last good start so that a failed trial can restart from it (rows F_N_PREV, S_XI_START)
     for i in range(nc):
-        F[F_N_PREV, i] = F[F_N, i]
+        w.n_prev[i] = w.n[i]
     for r in range(nr):
-        S[S_XI_START, r] = S[S_XI, r]
+        w.extents_start[r] = w.extents[r]
     n_t = 0.0
     z = 1.0
     root = 0
@@ -296,17 +298,16 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     for k in range(MAX_PRESSURE_STEPS):
         P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
         status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
-                                                         active, consts, coupled, tol, tol_g, max_iter, F, J, S,
-                                                         SM, M, KV, IV)
+                                                         active, consts, coupled, tol, tol_g, max_iter, w)
         total += it
         if status == NO_PHYSICAL_STATE:
             # no state of the model at this pressure: treat it as "too high" and step back
             hi = s
             have_hi = True
             for i in range(nc):
-                F[F_N, i] = F[F_N_PREV, i]
+                w.n[i] = w.n_prev[i]
             for r in range(nr):
-                S[S_XI, r] = S[S_XI_START, r]
+                w.extents[r] = w.extents_start[r]
             s = 0.5 * (s + lo) if have_lo else s - 1.0
             have_prev = False
             if s <= s_floor:
@@ -315,9 +316,9 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
         if status != CONVERGED:
             return status, REASON_NONE, total, k + 1, n_t, z, root, P
         for i in range(nc):
-            F[F_N_PREV, i] = F[F_N, i]
+            w.n_prev[i] = w.n[i]
         for r in range(nr):
-            S[S_XI_START, r] = S[S_XI, r]
+            w.extents_start[r] = w.extents[r]
         h = math.log(n_t * z * R * T / P) - ln_v
         if abs(h) <= tol_v:
             return CONVERGED, REASON_NONE, total, k + 1, n_t, z, root, P
@@ -342,7 +343,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
             s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
         if s_new >= s_ceiling:
             if s >= s_ceiling:  # already at the ceiling and still too large a volume
-                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, F), total, k + 1, n_t, z, root,
+                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, w), total, k + 1, n_t, z, root,
                         P)
             s_new = s_ceiling
         elif s_new <= s_floor:
@@ -359,17 +360,17 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
 
 @inline_kernel
 def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
-            T, F, S):
+            T, w):
     """Write the current iterate (rows F_N, F_LNPHI, F_MU, S_XI of the work buffers) as the answer of a state."""
     nc = n0.shape[0]
     nr = nu.shape[0]
     total = 0.0
     for i in range(nc):
-        total += F[F_N, i]
+        total += w.n[i]
     for i in range(nc):
-        row[layout.amounts + i] = F[F_N, i]
-        row[layout.y + i] = F[F_N, i] / total if total > 0.0 else 0.0
-        row[layout.ln_phis + i] = F[F_LNPHI, i] if root >= 0 else 0.0
+        row[layout.amounts + i] = w.n[i]
+        row[layout.y + i] = w.n[i] / total if total > 0.0 else 0.0
+        row[layout.ln_phis + i] = w.ln_phi[i] if root >= 0 else 0.0
     for r in range(nr):
         frozen = False
         for i in range(nc):
@@ -379,15 +380,15 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
         v = 0.0
         if not frozen and root >= 0:
             for i in range(nc):
-                v += nu[r, i] * F[F_MU, i]
+                v += nu[r, i] * w.mu[i]
         row[layout.residuals + r] = v
         if method == METHOD_EXTENT:
-            row[layout.extents + r] = S[S_XI, r]
+            row[layout.extents + r] = w.extents[r]
         else:
             # extents of the Gibbs answer, xi = nu_pinv^T (n - n0) (exact when n - n0 is in the span of nu)
             v = 0.0
             for i in range(nc):
-                v += nu_pinv[i, r] * (F[F_N, i] - n0[i])
+                v += nu_pinv[i, r] * (w.n[i] - n0[i])
             row[layout.extents + r] = v
     row[layout.P] = P
     row[layout.V] = V
@@ -397,7 +398,7 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
     if code == MODEL_CUBIC and root >= 0:
         b = 0.0
         for i in range(nc):
-            b += F[F_Y, i] * F[F_BI, i]
+            b += w.y[i] * w.b_i[i]
         if b > 0.0 and (z * R * T / P) / b < LIQUID_LIKE_REDUCED_VOLUME:
             liquid = True
     ints[STATUS] = status
@@ -445,7 +446,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     parameters; ``warm``: the work buffers hold a converged previous state of the same pattern (rows F_N_PREV,
     F_N0_PREV, S_XI_PREV). Returns True when the answer can warm-start the next state. Compiled into its callers
     (one call site each)."""
-    F, J, S, SM, M, KV, IV, VX, VI = work
+    w = work
     nc = n0.shape[0]
     nu = system.nu
     nr = nu.shape[0]
@@ -453,10 +454,10 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     layout = answer_layout(nc, nr, A.shape[0])
     code = system.model_code
     consts = system.model_constants
-    g0 = F[F_G0]
-    ln_k = S[S_LNK]
+    g0 = w.g0
+    ln_k = w.ln_k
     if new_T:
-        tparams_into(code, T, system.components, consts, system.kij, J[J_AIJ], F[F_BI], J[J_DAIJ], F[F_DBI])
+        tparams_into(code, T, system.components, consts, system.kij, w.a_ij, w.b_i, w.da_ij_dT, w.db_i_dT)
         g0_into(T, system.g0_ln_t0, system.g0_step, system.g0_nodes, g0)
         if not opts.user_ln_k:
             for r in range(nr):
@@ -473,9 +474,8 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     n_feed = 0.0
     for i in range(nc):
         n_feed += n0[i]
-    ambiguous = several_roots_possible(code, T, J[J_AIJ], F[F_BI], consts, patterns.gibbs_active[pat], n0,
-                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, M, KV[KV_RHS],
-                                       KV[KV_SOL], IV[IV_IDX], IV[IV_PIV], VX, VI)
+    ambiguous = several_roots_possible(code, T, w.a_ij, w.b_i, consts, patterns.gibbs_active[pat], n0,
+                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, w)
     fixed_volume = opts.fixed_volume
     recorded = False
     total_iterations = 0
@@ -510,42 +510,42 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
             if k < first_cold and special == START_GUESS:
                 if method == METHOD_EXTENT:
                     for r in range(nr):
-                        S[S_XI, r] = guess[r]
-                    started = _start_from_extents(n0, nu, active, F, S)
+                        w.extents[r] = guess[r]
+                    started = _start_from_extents(n0, nu, active, w)
                 else:
                     started = True
                     for i in range(nc):
-                        F[F_N, i] = max(guess[i], 1e-14 * n_feed) if active[i] else 0.0
+                        w.n[i] = max(guess[i], 1e-14 * n_feed) if active[i] else 0.0
             elif k < first_cold:  # warm start from the previous state of the chunk
                 same = True
                 prev_total = 0.0
                 for i in range(nc):
-                    prev_total += F[F_N0_PREV, i]
-                    if F[F_N0_PREV, i] != n0[i]:
+                    prev_total += w.n0_prev[i]
+                    if w.n0_prev[i] != n0[i]:
                         same = False
                 if same:
                     started = True
                     for i in range(nc):
-                        F[F_N, i] = F[F_N_PREV, i]
+                        w.n[i] = w.n_prev[i]
                     for r in range(nr):
-                        S[S_XI, r] = S[S_XI_PREV, r]
+                        w.extents[r] = w.extents_prev[r]
                     if method == METHOD_EXTENT and not fixed_volume:
                         predict_start(patterns.extent_directions[pat], patterns.extent_basis[pat],
-                                      patterns.extent_rank[pat], active, g0, F[F_G0_PREV],
-                                      math.log(PV) - LN_P_STANDARD - S[S_AUX, 0], SM[SM_L], S[S_SCALE], S[S_RHS],
-                                      S[S_D], F[F_N], S[S_XI])
+                                      patterns.extent_rank[pat], active, g0, w.g0_prev,
+                                      math.log(PV) - LN_P_STANDARD - w.ln_p_prev[0], w.factor, w.scale, w.rhs,
+                                      w.step, w.n, w.extents)
                 elif method == METHOD_EXTENT:
                     for r in range(nr):
-                        S[S_XI, r] = S[S_XI_PREV, r] * n_feed / prev_total
-                    started = _start_from_extents(n0, nu, active, F, S)
+                        w.extents[r] = w.extents_prev[r] * n_feed / prev_total
+                    started = _start_from_extents(n0, nu, active, w)
                 else:
                     started = True
                     for i in range(nc):
-                        v = F[F_N_PREV, i] * n_feed / prev_total
-                        F[F_N, i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
+                        v = w.n_prev[i] * n_feed / prev_total
+                        w.n[i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
             if not started:
                 fraction = COLD_FRACTIONS[k - first_cold] if k >= first_cold else COLD_FRACTIONS[0]
-                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, F, S)
+                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, w)
             # ---- solve
             reason = REASON_NONE
             P = PV
@@ -554,14 +554,13 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                     method, code, T, PV, n_feed * R * T / PV, n0, patterns.extent_directions[pat],
                     patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
                     patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts,
-                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, F, J, S, SM, M,
-                    KV, IV)
+                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, w)
             else:
                 status, iters, outer, n_t, z, root = _solve_at_pressure(
                     method, code, T, P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
                     patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
                     patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled, opts.tol,
-                    opts.tol_gibbs, opts.max_iterations, F, J, S, SM, M, KV, IV)
+                    opts.tol_gibbs, opts.max_iterations, w)
             total_iterations += iters
             total_outer += outer
             V = n_t * z * R * T / P
@@ -569,19 +568,19 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
             G = 0.0
             for i in range(nc):
                 if active[i]:
-                    G += F[F_N, i] * F[F_MU, i]
+                    G += w.n[i] * w.mu[i]
             value = G - n_t * z if fixed_volume else G
             if status == CONVERGED:
                 if not recorded or ints[STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
                     _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                            system.nu_pinv, A, code, T, F, S)
+                            system.nu_pinv, A, code, T, w)
                     recorded = True
                     best = value
                 if not ambiguous:
                     break
             elif not recorded or ints[STATUS] != CONVERGED:
                 _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                        system.nu_pinv, A, code, T, F, S)
+                        system.nu_pinv, A, code, T, w)
                 recorded = True
     ints[ITERATIONS] = total_iterations
     ints[OUTER] = total_outer
@@ -590,12 +589,12 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
         return False
     # remember the answer for a warm start of the next state
     for i in range(nc):
-        F[F_N_PREV, i] = row[layout.amounts + i]
-        F[F_N0_PREV, i] = n0[i]
-        F[F_G0_PREV, i] = g0[i]
-    S[S_AUX, 0] = math.log(row[layout.P]) - LN_P_STANDARD
+        w.n_prev[i] = row[layout.amounts + i]
+        w.n0_prev[i] = n0[i]
+        w.g0_prev[i] = g0[i]
+    w.ln_p_prev[0] = math.log(row[layout.P]) - LN_P_STANDARD
     for r in range(nr):
-        S[S_XI_PREV, r] = row[layout.extents + r]
+        w.extents_prev[r] = row[layout.extents + r]
     return True
 
 
@@ -613,8 +612,8 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     nr = system.nu.shape[0]
     k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
     work, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
-    work[0][F_SCRATCH + 2, 0] = 0.0  # no cubic root carried over from this thread's previous call: as if alone
-    work[8][1] = 0  # nor polytope vertices (they belong to one system's patterns)
+    work.model_scratch[2, 0] = 0.0  # no cubic root carried over from this thread's previous call: as if alone
+    work.vertex_info[1] = 0  # nor polytope vertices (they belong to one system's patterns)
     one_T[0] = T
     one_PV[0] = PV
     one_n0[0] = n0

@@ -29,9 +29,7 @@ the true residuals meet the tolerance.
 from __future__ import annotations
 
 from hipeq._jit import inline_kernel, kernel
-from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_LNPHI_TRY, F_MU, F_MU_TRY, F_N, F_N_TRY,
-                                   F_SCRATCH, F_Y, F_Y_TRY, FROZEN_PHI, J_JAC, MAX_ITERATIONS, NO_PHYSICAL_STATE,
-                                   S_D, S_GRAD, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, SM_M, SM_M_TRY, STALLED,
+from hipeq.solvers._common import (CONVERGED, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE, SINGULAR, STALLED,
                                    WITH_PHI, WITH_REDUCED, cholesky_resolve, cholesky_solve, evaluate)
 
 FRACTION_TO_BOUNDARY = 0.99
@@ -195,23 +193,23 @@ def predict_start(W, Zb, neff, active, g0, g0_prev, dlnp, L, scale, rhs, d, n, x
 
 @kernel
 def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, coupled, tol, max_iter,
-                 F, J, S, SM):
+                 w):
     """Solve the equilibrium conditions in the reduced extents from the start in row F_N (amounts, positive on
     the active species) and ``xi`` (extents matching them; updated in place).
 
     W = nu^T Zb (nc x neff). Returns (status, iterations, outer_iterations, n_T, Z, root); on return the rows
     F_N, F_Y, F_LNPHI and F_MU hold the last iterate, with ln phi evaluated there.
     """
-    n = F[F_N]
-    y = F[F_Y]
-    ln_phi = F[F_LNPHI]
-    mu = F[F_MU]
-    M = SM[SM_M]
-    jac = J[J_JAC]
-    scr = F[F_SCRATCH:F_SCRATCH + 3]
-    grad = S[S_GRAD]
-    views = (n, y, ln_phi, mu, M, grad, F[F_DN], S[S_RHS], S[S_D], SM[SM_H], SM[SM_L], S[S_SCALE], F[F_N_TRY],
-             F[F_Y_TRY], F[F_LNPHI_TRY], SM[SM_M_TRY], F[F_MU_TRY], jac, scr)
+    n = w.n
+    y = w.y
+    ln_phi = w.ln_phi
+    mu = w.mu
+    M = w.reduced_jac
+    jac = w.jac
+    scr = w.model_scratch
+    grad = w.grad
+    views = (n, y, ln_phi, mu, M, grad, w.dn, w.rhs, w.step, w.hessian, w.factor, w.scale, w.n_try,
+             w.y_try, w.ln_phi_try, w.reduced_jac_try, w.mu_try, jac, scr)
     first = WITH_REDUCED if coupled else WITH_PHI
     n_t, z, root, g = evaluate(first, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac, mu, W, neff,
                                M, scr)

@@ -31,12 +31,8 @@ from __future__ import annotations
 import math
 
 from hipeq._jit import inline_kernel, kernel
-from hipeq.solvers._common import (CONVERGED, F_DN, F_LNPHI, F_MU, F_N, F_N_TRY, F_R, F_SCRATCH, F_Y, F_Y_TRY,
-                                   FROZEN_PHI,
-                                   IV_IDX, IV_PIV, J_JAC, J_JAC_TRY,
-                                   KV_RHS, KV_SOL, MAX_ITERATIONS, NO_PHYSICAL_STATE, S_B, S_EBAL, S_ESCALE,
-                                   S_LAM, S_RHS, S_SCALE, SINGULAR, SM_H, SM_L, WITH_JACOBIAN, WITH_PHI,
-                                   ELEMENT_ATOL, cholesky_solve, evaluate, lu_solve)
+from hipeq.solvers._common import (CONVERGED, ELEMENT_ATOL, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE,
+                                   SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve)
 
 LOG_STEP_MAJOR = 2.0  # largest change of ln n_i per iteration for species above TRACE in mole fraction
 TRACE = 1e-3
@@ -46,7 +42,7 @@ MAX_POLISH = 3
 
 
 @inline_kernel
-def _fit_potentials(Q, neq, n, mu, active, S, SM):
+def _fit_potentials(Q, neq, n, mu, active, w):
     """Element potentials by weighted least squares, min sum_i w_i (mu_i - sum_e Q_ei lambda_e)^2 with w_i = n_i;
     when that normal matrix is singular to working precision (an element carried only by 1e-12 mol beside
     9 mol of a species carrying the others makes two rows nearly parallel in that weighting), with w_i = 1 on the
@@ -55,8 +51,8 @@ def _fit_potentials(Q, neq, n, mu, active, S, SM):
     if neq == 0:
         return True
     nc = n.shape[0]
-    H = SM[SM_H]
-    rhs = S[S_RHS]
+    H = w.hessian
+    rhs = w.rhs
     for weighted in (True, False):
         for e in range(neq):
             v = 0.0
@@ -71,15 +67,15 @@ def _fit_potentials(Q, neq, n, mu, active, S, SM):
                         v += Q[e, i] * Q[f, i] * (n[i] if weighted else 1.0)
                 H[e, f] = v
                 H[f, e] = v
-        if cholesky_solve(H, rhs, neq, S[S_LAM], SM[SM_L], S[S_SCALE]):
+        if cholesky_solve(H, rhs, neq, w.potentials, w.factor, w.scale):
             return True
     return False
 
 
 @inline_kernel
-def _residuals(Q, neq, n, mu, active, r, S):
+def _residuals(Q, neq, n, mu, active, r, w):
     nc = n.shape[0]
-    lam = S[S_LAM]
+    lam = w.potentials
     rmax = 0.0
     for i in range(nc):
         if active[i]:
@@ -92,20 +88,21 @@ def _residuals(Q, neq, n, mu, active, r, S):
             r[i] = 0.0
     emax = 0.0
     for e in range(neq):
-        v = -S[S_B, e]
+        v = -w.element_totals[e]
         for i in range(nc):
             v += Q[e, i] * n[i]
-        S[S_EBAL, e] = v
-        emax = max(emax, abs(v) / S[S_ESCALE, e])
+        w.element_balance[e] = v
+        emax = max(emax, abs(v) / w.element_scale[e])
     return rmax, emax
 
 
 @inline_kernel
-def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV):
+def _newton(Q, neq, n, n_t, use_jac, jac, active, r, w):
     """Assemble and solve the log-amount Newton system; returns (ok, number of active species)."""
     nc = n.shape[0]
-    idx = IV[IV_IDX]
-    rhs = KV[KV_RHS]
+    idx = w.kkt_index
+    rhs = w.kkt_rhs
+    M = w.kkt
     m = 0
     for i in range(nc):
         if active[i]:
@@ -129,13 +126,13 @@ def _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV):
     for e in range(neq):
         for c in range(m):
             j = idx[c]
-            M[m + e, c] = Q[e, j] * n[j] / S[S_ESCALE, e]
-        rhs[m + e] = -S[S_EBAL, e] / S[S_ESCALE, e]
+            M[m + e, c] = Q[e, j] * n[j] / w.element_scale[e]
+        rhs[m + e] = -w.element_balance[e] / w.element_scale[e]
     for c in range(m):
         M[size - 1, c] = n[idx[c]] / n_t
     M[size - 1, size - 1] = -1.0
     rhs[size - 1] = 0.0
-    return lu_solve(M, rhs, size, KV[KV_SOL], IV[IV_PIV]), m
+    return lu_solve(M, rhs, size, w.kkt_solution, w.pivots), m
 
 
 @inline_kernel
@@ -170,10 +167,10 @@ def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
 
 
 @inline_kernel
-def _update(neq, n, n_t, m, S, KV, IV):
+def _update(neq, n, n_t, m, w):
     """Damped multiplicative update of the amounts and additive update of the element potentials."""
-    idx = IV[IV_IDX]
-    sol = KV[KV_SOL]
+    idx = w.kkt_index
+    sol = w.kkt_solution
     alpha = 1.0
     for a in range(m):
         i = idx[a]
@@ -196,13 +193,13 @@ def _update(neq, n, n_t, m, S, KV, IV):
         if not (n[i] > 0.0):
             n[i] = 1e-300
     for e in range(neq):
-        S[S_LAM, e] += alpha * sol[m + e]
+        w.potentials[e] += alpha * sol[m + e]
     return alpha
 
 
 @kernel
 def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
-                F, J, S, SM, M, KV, IV):
+                w):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
 
     The first neq rows of Q are independent rows of the element matrix restricted to the active species (one
@@ -219,17 +216,17 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
         v = 0.0
         for i in range(nc):
             v += Q[e, i] * n0[i]
-        S[S_B, e] = v
+        w.element_totals[e] = v
         total += abs(v)
     for e in range(neq):
-        S[S_ESCALE, e] = max(abs(S[S_B, e]), ELEMENT_ATOL * total, 1e-300)
-    n = F[F_N]
-    y = F[F_Y]
-    ln_phi = F[F_LNPHI]
-    mu = F[F_MU]
-    r = F[F_R]
-    jac = J[J_JAC]
-    scratch = F[F_SCRATCH:F_SCRATCH + 3]
+        w.element_scale[e] = max(abs(w.element_totals[e]), ELEMENT_ATOL * total, 1e-300)
+    n = w.n
+    y = w.y
+    ln_phi = w.ln_phi
+    mu = w.mu
+    r = w.species_residuals
+    jac = w.jac
+    scratch = w.model_scratch
     first = WITH_JACOBIAN if coupled else WITH_PHI
     # W = Nb, neff = n_null: the reduced matrix is never asked for here (no WITH_REDUCED mode), but arguments of
     # the extent solver's types let both solvers share one compiled model dispatcher (a literal 0 compiled another)
@@ -237,7 +234,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                                n_null, jac, scratch)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
-    if not _fit_potentials(Q, neq, n, mu, active, S, SM):
+    if not _fit_potentials(Q, neq, n, mu, active, w):
         return SINGULAR, 0, 0, n_t, z, root
     mode = WITH_JACOBIAN if coupled else FROZEN_PHI
     inner_tol = 0.1 * tol
@@ -247,14 +244,14 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     last = 0.0
     inner = False  # nested scheme: inside the loop with ln phi frozen (the ideal-solution RAND iteration)
     while True:
-        rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
+        rmax, emax = _residuals(Q, neq, n, mu, active, r, w)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
                                        jac, mu, Nb, n_null, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
-            rmax, emax = _residuals(Q, neq, n, mu, active, r, S)
+            rmax, emax = _residuals(Q, neq, n, mu, active, r, w)
         met = not inner and rmax <= tol and emax <= ELEMENT_TOL  # the current iterate meets the tolerances
         if not inner:
             if met:
@@ -268,14 +265,14 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
             if not coupled:
                 outer += 1
                 inner = True
-        use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, J[J_JAC_TRY], M, F[F_DN],
-                                              F[F_Y_TRY], F[F_N_TRY])
-        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, S, M, KV, IV)
+        use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, w.jac_try, w.kkt, w.dn,
+                                              w.y_try, w.n_try)
+        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, w)
         if not ok:
             if met:  # a polish step failed; the current iterate (not yet moved) meets the tolerances
                 return CONVERGED, iterations, outer, n_t, z, root
             return SINGULAR, iterations, outer, n_t, z, root
-        _update(neq, n, n_t, m, S, KV, IV)
+        _update(neq, n, n_t, m, w)
         iterations += 1
         n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
                                            mu, Nb, n_null, jac, scratch)
