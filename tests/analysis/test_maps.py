@@ -270,3 +270,12 @@ def test_bad_feed_names_the_field(system) -> None:
     with pytest.raises(InputError) as err:
         solve_in_chunks(system, np.ones((2, 4)), 700.0, 1e6)
     assert err.value.field == "feed"
+
+
+def test_progress_bar_on_request_only(system, capsys) -> None:
+    grid = dict(T=["400 degC", "450 degC"], P=[1e6, 1e7, 1e8], models=("ideal", "PR"), chunk_states=2)
+    quiet = operating_map(system, FEED, **grid, progress=False)
+    assert "operating map" not in capsys.readouterr().err
+    loud = operating_map(system, FEED, **grid, progress=True)
+    assert "operating map" in capsys.readouterr().err
+    assert loud.y["PR"].tobytes() == quiet.y["PR"].tobytes()
