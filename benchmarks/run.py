@@ -31,8 +31,8 @@ os.environ.setdefault("NUMBA_CACHE_DIR", str(HERE.parent / ".numba_cache"))
 
 from harness import RESULTS_DIR, Context, Row, busy_cpus, machine, table  # noqa: E402
 
-MODULES = ["bench_fugacity", "bench_ammonia", "bench_methanol", "bench_map", "bench_startup", "bench_memory",
-           "bench_profile"]
+MODULES = ["bench_fugacity", "bench_ammonia", "bench_methanol", "bench_map", "bench_operating_map", "bench_startup",
+           "bench_memory", "bench_profile"]
 
 
 def _load() -> dict[str, object]:
