@@ -36,7 +36,7 @@ def test_demo_case_parses_to_si_units():
     assert case.P == pytest.approx(215e5)
     assert case.V is None
     assert case.feed["H2"] == pytest.approx(70.9)
-    assert case.sweep_T.shape == (7,) and case.sweep_P[-1] == pytest.approx(400e5)
+    assert case.sweep["temperature"].shape == (7,) and case.sweep["pressure"][-1] == pytest.approx(400e5)
 
 
 def test_minimal_case_units_are_converted():
@@ -58,7 +58,16 @@ def test_minimal_case_units_are_converted():
         (("feed", "N2"), "-1 mol", "[feed] N2"),
         (("model", "eso"), "PR", "[model] eso"),
         (("model", "quantum_hydrogen"), "yes", "[model] quantum_hydrogen"),
-        (("sweep", "pressure"), ["1 bar", "2 bar"], "[sweep] pressure"),
+        (("sweep", "pressure"), ["1 bar", "2 bar", 0], "[sweep] pressure"),
+        (("sweep", "pressure"), ["1 bar", "2 bar", 2.5], "[sweep] pressure"),
+        (("sweep", "pressure"), ["1 bar", "2 degC"], "[sweep] pressure"),
+        (("model", "kij"), "group", "[model] kij"),
+        (("model", "kij"), {"H2-Xe": 0.1}, "[model] kij"),
+        (("solver", "tolerance"), 1.0, "[solver] tolerance"),
+        (("solver", "method"), "newton", "[solver] method"),
+        (("compare", "tolerance"), 2, "[compare] tolerance"),
+        (("map", "temperature"), ["300 degC", "600 degC", 3000], "[map] temperature"),
+        (("report", "species"), ["Xe"], "[report] species"),
     ],
 )
 def test_wrong_case_names_the_field(path, value, field):
@@ -69,7 +78,7 @@ def test_wrong_case_names_the_field(path, value, field):
 
 def test_pressure_and_volume_together_are_refused():
     doc = _with(("conditions", "volume"), "1 m3")
-    with pytest.raises(InputError, match="exactly one of pressure or volume"):
+    with pytest.raises(InputError, match="exactly one of pressure"):
         parse_case(doc)
 
 

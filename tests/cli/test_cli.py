@@ -27,12 +27,16 @@ def test_demo_case_runs_and_reports(tmp_path):
     assert "standard state: ideal gas at 1 bar" in out
     assert CAUTION in out
     report = json.loads(target.read_text())
-    y = report["result"]["y"]
+    sections = report["sections"]
+    main = next(v for k, v in sections.items() if k.startswith("Equilibrium"))
+    y = main["result"]["y"]
     assert sum(y.values()) == pytest.approx(1.0, abs=1e-12)
     # the real-gas answer lies above the ideal-gas one for ammonia synthesis at 215 bar (K_phi < 1):
     # Le Chatelier plus fugacity correction, common practice in converter design
-    assert report["comparison"]["PR"]["NH3"] > report["comparison"]["ideal"]["NH3"]
-    grid = report["sweep"]["y"]
+    comparison = next(v for k, v in sections.items() if k.startswith("Ideal gas against"))
+    assert comparison["models"]["PR"]["y_key [-]"] > comparison["models"]["ideal"]["y_key [-]"]
+    sweep = next(v for k, v in sections.items() if k.startswith("Sweep"))
+    grid = sweep["y_NH3 [-]"]
     assert len(grid) == 7 and len(grid[0]) == 4
     # more ammonia at higher pressure and at lower temperature (Le Chatelier)
     assert all(row[0] < row[-1] for row in grid)
@@ -48,10 +52,10 @@ def test_bad_case_exits_2_and_names_the_key(tmp_path):
 
 
 def test_constant_table_and_species_record():
-    code, out, _ = _run("constant", "N2 + 3 H2 = 2 NH3", "--from", "400 K", "--to", "800 K", "--count", "3")
+    code, out, _ = _run("reaction", "N2 + 3 H2 = 2 NH3", "--from", "400 K", "--to", "800 K", "--count", "3")
     assert code == 0 and "van 't Hoff" in out and out.count("\n") >= 5
     code, out, _ = _run("species", "methanol")
-    assert code == 0 and "CH3OH" in out and "Tc / K" in out
+    assert code == 0 and "CH3OH" in out and "Tc [K]" in out
     code, _, err = _run("species", "methanl")
     assert code == 2 and "methanol" in err
 
@@ -65,9 +69,13 @@ def test_case_kij_applies_to_its_own_model_and_comparison_still_runs(tmp_path):
     target = tmp_path / "out.json"
     code, out, err = _run("run", str(case), "--json", str(target))
     assert code == 0, err
-    report = json.loads(target.read_text())
-    kij = report["result"]["kij"]
+    sections = json.loads(target.read_text())["sections"]
+    main = next(v for k, v in sections.items() if k.startswith("Equilibrium"))
+    kij = main["result"]["kij"]
     pair = [v for k, v in kij.items() if set(k.split(" / ")) == {"H2", "N2"}]
     assert pair == [pytest.approx(0.05)], kij
-    assert set(report["comparison"]) == {"ideal", "SRK", "PR"}
-    assert report["sweep"]["species"] == "NH3"
+    comparison = next(v for k, v in sections.items() if k.startswith("Ideal gas against"))
+    # the case's own model (with its k_ij) is compared under its own label and is the reference
+    assert set(comparison["models"]) == {"ideal", "SRK", "PR", "PR (case)"}
+    assert comparison["models"]["PR (case)"]["y_key [-]"] == pytest.approx(main["result"]["y"]["NH3"], rel=1e-12)
+    assert comparison["reference"] == "PR (case)"

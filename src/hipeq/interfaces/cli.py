@@ -107,8 +107,18 @@ def compare_section(case: Any, system: Any) -> Section:
     """Ideal gas against real-gas models ([compare]) through :func:`hipeq.compare`."""
     import hipeq
 
+    from hipeq.analysis._common import DEFAULT_MODELS
+
     options = dict(case.compare or {})
-    kwargs = {k: options[k] for k in ("models", "reference", "tolerance", "relative_tolerance") if k in options}
+    kwargs = {k: options[k] for k in ("reference", "tolerance", "relative_tolerance") if k in options}
+    models: list[Any] = list(options.get("models", DEFAULT_MODELS))
+    if any(value not in (None, False) for name, value in case.model.items() if name != "eos"):
+        # the case's own model has options of its own (k_ij, volume translation, ...): compare it too, by name,
+        # and measure against it unless [compare] names a reference
+        label = f"{case.eos} (case)"
+        models.append((label, dict(case.model)))
+        kwargs.setdefault("reference", label)
+    kwargs["models"] = models
     comparison = _in_case(lambda: hipeq.compare(system, case.feed, case.T, key=case.key, **_conditions(case),
                                                 **kwargs))
     section = Section(f"Ideal gas against real-gas models (key product {comparison.key})",
@@ -206,9 +216,9 @@ def _print_sections(sections: Sequence[Section], header: str, out: TextIO) -> No
     failed = sum(s.failed for s in sections)
     if failed:
         lines.append(f"{failed} state(s) {MARK_FAILED}: their values are not shown; exit code 1")
-    lines.append(CAUTION)
     for line in lines:
         print(textwrap.fill(line, width=110, initial_indent="  ", subsequent_indent="    "), file=out)
+    print("  " + CAUTION, file=out)  # one line, so that it can be found in logs
 
 
 def _write_json(path: str | None, case: Any, sections: Sequence[Section]) -> None:

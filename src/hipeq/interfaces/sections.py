@@ -8,6 +8,7 @@ place where results become text; the analysis and solver layers never format.
 from __future__ import annotations
 
 import math
+import textwrap
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -42,7 +43,7 @@ class Section:
         lines = [self.title, "-" * len(self.title)]
         if self.columns:
             lines.append(table(self.columns, self.rows))
-        lines += [f"  {note}" for note in self.notes]
+        lines += [textwrap.fill(note, width=110, initial_indent="  ", subsequent_indent="    ") for note in self.notes]
         return "\n".join(lines)
 
 
