@@ -151,6 +151,7 @@ class _SystemInfo:
     notes: tuple[str, ...]
     k_source: str
     model: Any  # the CompiledModel that gave ln phi (residual properties at the answer come from it)
+    records: tuple[Any, ...] = ()  # the Species records (ideal-gas H0, S0 of the energy properties)
 
 
 def _ln_k_y(nu: np.ndarray, y: np.ndarray) -> np.ndarray:
@@ -279,6 +280,67 @@ class _Common:
         s_res = (h_res - g_res)/T (Michelsen & Mollerup 2007, ch. 2). NaN where the state did not converge."""
         return self._residual[1]
 
+    @cached_property
+    def _energy(self) -> tuple[Any, Any]:
+        """(H [J], S [J/K]) of the equilibrium mixture, NaN where h_res is NaN (see ``hipeq.solvers.properties``)."""
+        from hipeq.solvers.properties import ideal_gas_parts
+
+        h_res, s_res = (np.asarray(v, dtype=float) for v in self._residual)
+        H, S = np.full(h_res.shape, np.nan), np.full(h_res.shape, np.nan)
+        ok = np.isfinite(h_res)
+        if np.any(ok):
+            T, P = (np.broadcast_to(np.asarray(v, dtype=float), h_res.shape)[ok] for v in (self.T, self.P))
+            n = self._amounts[ok] if h_res.ndim else self._amounts
+            H_id, S_id = ideal_gas_parts(self._info.records, T, n, P)
+            n_tot = np.sum(n, axis=-1)
+            H[ok] = H_id + n_tot * h_res[ok]
+            S[ok] = S_id + n_tot * s_res[ok]
+        if not h_res.ndim:
+            return H[()], S[()]
+        for value in (H, S):
+            value.flags.writeable = False
+        return H, S
+
+    @property
+    def H(self) -> Any:
+        """Enthalpy of the equilibrium mixture [J], relative to the elements at 298.15 K (ideal gas):
+        H = sum_i n_i H0_i(T) + n h_res, H0_i = ΔfH0_i + ∫_298.15^T Cp_i dT (Smith, Van Ness & Abbott 2005, sec.
+        4.3; :mod:`hipeq.solvers.properties`). Includes the formation enthalpies, so H_feed - H_out is the heat
+        given off. NaN where the state did not converge."""
+        return self._energy[0]
+
+    @property
+    def S(self) -> Any:
+        """Absolute entropy of the equilibrium mixture [J/K]: sum_i n_i [S0_i(T) - R ln(y_i P/P0)] + n s_res,
+        P0 = 1 bar. NaN where the state did not converge."""
+        return self._energy[1]
+
+    @property
+    def U(self) -> Any:
+        """Internal energy of the equilibrium mixture [J], U = H - P V (same reference as H)."""
+        return self._energy[0] - np.asarray(self.P) * np.asarray(self.V)
+
+    @property
+    def n_total(self) -> Any:
+        """Total amount of the equilibrium mixture [mol]."""
+        total = np.sum(self._amounts, axis=-1)
+        return float(total) if np.ndim(total) == 0 else total
+
+    @property
+    def h(self) -> Any:
+        """Molar enthalpy H / n [J/mol]."""
+        return self.H / self.n_total
+
+    @property
+    def s(self) -> Any:
+        """Molar entropy S / n [J/(mol K)]."""
+        return self.S / self.n_total
+
+    @property
+    def u(self) -> Any:
+        """Molar internal energy U / n [J/mol]."""
+        return self.U / self.n_total
+
     @property
     def eos(self) -> str:
         """Name of the fugacity model."""
@@ -321,8 +383,9 @@ class _Common:
 
     _PUBLIC = ("T", "P", "V", "Z", "species", "reactions", "amounts", "y", "phi", "conversion", "extents", "ln_K",
                "K", "K_phi", "K_y", "residuals", "element_residuals", "iterations", "outer_iterations", "converged",
-               "status", "reason", "method", "method_requested", "scheme", "root", "liquid_like", "G_RT", "h_res", "s_res", "eos", "kij",
-               "zero_kij_pairs", "kij_sources", "K_source", "data_sources", "notes", "standard_state")
+               "status", "reason", "method", "method_requested", "scheme", "root", "liquid_like", "G_RT", "h_res",
+               "s_res", "H", "S", "U", "n_total", "h", "s", "u", "eos", "kij", "zero_kij_pairs", "kij_sources",
+               "K_source", "data_sources", "notes", "standard_state")
 
     def to_dict(self) -> dict[str, Any]:
         """Every public field as plain Python values (lists for arrays, dicts for mappings), with the units of
@@ -339,7 +402,8 @@ class _Common:
 
 UNITS = MappingProxyType({"T": "K", "P": "Pa", "V": "m3", "amounts": "mol", "extents": "mol", "Z": "-", "y": "-",
                           "phi": "-", "K": "- (pressures relative to 1 bar)", "h_res": "J/mol",
-                          "s_res": "J/(mol K)", "G_RT": "mol"})
+                          "s_res": "J/(mol K)", "G_RT": "mol", "H": "J (relative to the elements at 298.15 K)",
+                          "S": "J/K", "U": "J", "n_total": "mol", "h": "J/mol", "s": "J/(mol K)", "u": "J/mol"})
 
 
 def _status_text(status: int, reason: int, method: str, requested: str) -> str:

@@ -44,7 +44,9 @@ from hipeq.solvers.result import BatchResult, EquilibriumResult, _SystemInfo, sc
 from hipeq.units import to_si
 
 if TYPE_CHECKING:
+    from hipeq.solvers.adiabatic import AdiabaticBatchResult, AdiabaticResult
     from hipeq.solvers.bound import StateSolver
+    from hipeq.solvers.properties import MixtureProperties
 
 __all__ = ["ReactionSystem"]
 
@@ -150,7 +152,7 @@ class ReactionSystem:
             element_index=MappingProxyType({e: k for k, e in enumerate(self.elements)}), eos=m.eos, kij=m.kij,
             kij_sources=m.kij_sources, zero_kij_pairs=m.zero_kij_pairs,
             data_sources=MappingProxyType({r.name: MappingProxyType(dict(r.sources)) for r in records}),
-            notes=self.notes, k_source=k_source, model=m)
+            notes=self.notes, k_source=k_source, model=m, records=records)
         # what the scalar, batch and bound paths read (they never reach into this object's private members)
         self.context = SolveContext(compiled=self.compiled, layout=self._layout, info=self._info,
                                     pattern_bits=self._bits, T_min=float(self.T_min), T_max=float(self.T_max),
@@ -435,6 +437,66 @@ class ReactionSystem:
         T_si = to_si(T, "temperature", "T")
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
         return solve_batch(self, feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations)
+
+    def mixture_properties(self, amounts: Any, T: Any, P: Any = None, V: Any = None) -> MixtureProperties:
+        """Enthalpy, entropy, internal energy and Gibbs energy of a gas mixture of this system's species at T [K]
+        and P [Pa] or total volume V [m3], with the system's fugacity model for the residual part:
+        H = sum_i n_i H0_i(T) + n h_res, S = sum_i n_i [S0_i(T) - R ln(y_i P/P0)] + n s_res, U = H - P V
+        (:mod:`hipeq.solvers.properties`; Smith, Van Ness & Abbott 2005, sec. 4.3 and 6.3; Michelsen & Mollerup
+        2007, ch. 2). ``amounts`` [mol]: {name: amount} or an array with species on the last axis (arrays
+        broadcast with T and P or V). Enthalpies relative to the elements at 298.15 K; standard state ideal gas
+        at 1 bar. Returns a :class:`~hipeq.solvers.properties.MixtureProperties`."""
+        from hipeq.solvers.properties import mixture_properties
+
+        if isinstance(amounts, Mapping):
+            cols = {self.species_index(k): np.asarray(feed_amount(k, v), dtype=float) for k, v in amounts.items()}
+            if not cols:
+                raise InputError("amounts", "is empty; give at least one species with a positive amount [mol]")
+            shape = np.broadcast_shapes(*(c.shape for c in cols.values()))
+            arr = np.zeros(shape + (len(self.species_names),))
+            for j, c in cols.items():
+                arr[..., j] += c
+            amounts = arr
+        if T is not None:
+            T = to_si(T, "temperature", "T")
+        if P is not None:
+            P = to_si(P, "pressure", "P")
+        if V is not None:
+            V = to_si(V, "volume", "V")
+        return mixture_properties(self.records, self.model, amounts, T, P, V)
+
+    def adiabatic_equilibrium(self, feed: Mapping[str, Any] | Any, T_in: Any, P: Any, *,
+                              T_bounds: tuple[Any, Any] | None = None, method: str = "extent",
+                              tol: float = DEFAULT_TOL, raise_on_failure: bool = False
+                              ) -> AdiabaticResult | AdiabaticBatchResult:
+        """Outlet of an adiabatic reactor at equilibrium: the temperature T at which the equilibrium mixture at
+        T and P carries the enthalpy of the feed at T_in and P,
+
+            H(T, P, n_eq(T, P)) = H(T_in, P, n_feed),
+
+        H from :meth:`mixture_properties` (heat of reaction included through the formation enthalpies; real gas
+        through the model's residual enthalpy). Bracketed search (:mod:`hipeq.solvers.adiabatic`): the enthalpy
+        balance closes to 1e-12 of max(|H_in|, n_feed R T_in), or the temperature to 1e-9 K.
+
+        Args:
+            feed: amounts [mol], as in :meth:`equilibrium` (arrays make a batch).
+            T_in: inlet temperature [K] (or "450 degC"), within ``T_min``-``T_max``.
+            P: pressure [Pa] (or "250 bar"), the same at inlet and outlet.
+            T_bounds: (low, high) [K] where the outlet is searched; default (T_min, T_max).
+            method, tol: passed to :meth:`equilibrium`.
+            raise_on_failure: for a batch, raise NotConvergedError when any state failed (one state always
+                raises: NotConvergedError when an equilibrium solve fails, InputError("T_bounds") when no
+                temperature within the bounds closes the balance).
+
+        Returns an :class:`~hipeq.solvers.adiabatic.AdiabaticResult` (an EquilibriumResult at the outlet plus
+        ``T_in``, ``H_in``, ``temperature_rise``, ``energy_residual``) for scalar input, else an
+        :class:`~hipeq.solvers.adiabatic.AdiabaticBatchResult`. Equilibrium is a thermodynamic limit, not a
+        design basis; follow local codes and licensed engineering practice.
+        """
+        from hipeq.solvers.adiabatic import adiabatic_equilibrium
+
+        return adiabatic_equilibrium(self, feed, T_in, P, T_bounds=T_bounds, method=method, tol=tol,
+                                     raise_on_failure=raise_on_failure)
 
     def state_solver(self, method: str = "extent", fixed_volume: bool = False, tol: float = DEFAULT_TOL,
                      max_iterations: int = 100) -> StateSolver:
