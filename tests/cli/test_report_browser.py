@@ -29,7 +29,7 @@ def page(tmp_path_factory):
 
     folder = tmp_path_factory.mktemp("report")
     html = folder / "report.html"
-    done = subprocess.run([sys.executable, "-m", "hipeq.interfaces.cli", "run", str(DEMO), "--html", str(html)],
+    done = subprocess.run([sys.executable, "-m", "hipeq.interfaces.cli", "run", str(DEMO), "--out", str(folder)],
                           capture_output=True, text=True, env={"HIPEQ_QUIET": "1", "PATH": "/usr/bin:/bin",
                                                                 "HOME": str(Path.home())}, timeout=600)
     assert done.returncode == 0, done.stderr
@@ -50,7 +50,8 @@ def test_report_has_its_sections_and_caution(page):
 
     assert "hipeq report" in page.title
     text = page.find_element(By.TAG_NAME, "body").text
-    for heading in ("Equilibrium at T = 440.00 degC", "Data sources", "Status marks"):
+    for heading in ("Equilibrium at T = 440.00 degC", "Ideal gas against real-gas models", "Operating map",
+                    "Adiabatic bed", "Beds in series", "Data sources", "Status marks"):
         assert heading in text
     assert "thermodynamic limit, not a design basis" in page.find_element(By.ID, "caution").text
     assert "standard state: ideal gas at 1 bar" in text
@@ -64,6 +65,7 @@ def test_report_images_are_embedded_and_load(page):
     from selenium.webdriver.common.by import By
 
     images = page.find_elements(By.CSS_SELECTOR, "figure img")
+    assert len(images) >= 3  # the map, the yield against pressure, the beds
     for image in images:  # every embedded figure decoded by the browser (naturalWidth > 0)
         assert image.get_attribute("src").startswith("data:image/png;base64,")
         assert page.execute_script("return arguments[0].complete && arguments[0].naturalWidth", image) > 0

@@ -143,7 +143,8 @@ class Tolerance:
         """Words for tables and verdicts."""
         if self.relative is not None:
             return f"{100 * self.relative:g} % of the reference yield"
-        return f"{100 * self.absolute:g} mole-percent points"
+        points = 100 * self.absolute
+        return f"{points:g} mole-percent point{'' if points == 1 else 's'}"
 
 
 def tolerance_from(tolerance: float | None = None, relative_tolerance: float | None = None) -> Tolerance:

@@ -38,7 +38,7 @@ _COLOURS = ("#1f77b4", "#d62728", "#2ca02c", "#9467bd", "#8c564b", "#e377c2")
 def _feed_text(m: OperatingMap) -> str:
     fed = [(name, v) for name, v in m.feed.items() if v > 0]
     smallest = min(v for _, v in fed)
-    return ":".join(name for name, _ in fed) + " = " + ":".join(f"{v / smallest:g}" for _, v in fed)
+    return ":".join(name for name, _ in fed) + " = " + ":".join(f"{v / smallest:.3g}" for _, v in fed)
 
 
 def _log_axis(m: OperatingMap, log_pressure: bool | None) -> bool:

@@ -257,6 +257,9 @@ def parse_case(doc: Mapping[str, Any], path: str = "") -> Case:
         if name in parts and "volume" in conditions:
             raise InputError(f"[{name}]", "works at the case's pressure; the case is a sealed vessel "
                                           "([conditions] volume)")
+    beds = parts.get("beds")
+    if beds is not None and (beds.get("cooling") == "quench") != ("quench_temperature" in beds):
+        raise InputError("[beds] quench_temperature", "give it exactly when cooling = \"quench\"")
     if "compare" in parts and "tolerance" in parts["compare"] and "relative_tolerance" in parts["compare"]:
         raise InputError("[compare]", "give tolerance or relative_tolerance, not both")
     report = parts.get("report", {})

@@ -3,6 +3,9 @@
     hipeq run CASE.toml [--json F] [--csv F] [--html F] [--figures DIR]   everything the case asks for
     hipeq compare CASE.toml         ideal gas against real-gas models at the case's conditions
     hipeq sweep CASE.toml           the case over its [sweep] axes
+    hipeq map CASE.toml --out DIR   an operating map ([map]) with figures and the grid as CSV
+    hipeq adiabatic CASE.toml       the adiabatic outlet ([adiabatic]), case model and ideal gas
+    hipeq beds CASE.toml            adiabatic beds in series ([beds]) with their figure
     hipeq reaction "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
     hipeq species NAME              a species record with the source of every datum
     hipeq keys                      the case-file reference (every table and key)
@@ -167,7 +170,8 @@ def sweep_section(case: Any, system: Any) -> Section:
                 value = f"{y[i, j]:.4f}" if y[i, j] >= 1e-3 else number(y[i, j], 3)
                 cells.append(MARK_FAILED if status[i, j] else value + ("*" if liquid[i, j] else ""))
             section.rows.append(cells)
-        section.notes.append(f"{MARK_FAILED}: did not converge; *: {MARK_LIQUID} root (a liquid may form)")
+        if np.any(status) or np.any(liquid):
+            section.notes.append(f"{MARK_FAILED}: did not converge; *: {MARK_LIQUID} root (a liquid may form)")
     for i in range(0 if grid else TT.shape[0]):
         for j in range(TT.shape[1]):
             ok = status[i, j] == 0
@@ -180,6 +184,98 @@ def sweep_section(case: Any, system: Any) -> Section:
     section.data = {"key": key, "T [K]": TT.tolist(), ("P [Pa]" if second == "pressure" else "V [m3]"): SS.tolist(),
                     f"y_{key} [-]": np.where(status == 0, y, np.nan).tolist(), "status": status.tolist(),
                     "P_equilibrium [Pa]": P.tolist()}
+    return section
+
+
+def map_section(case: Any, system: Any, folder: Path | None) -> Section:
+    """The operating map of [map]: a summary table (the ideal-gas limit per temperature, the band), with the
+    full grid in CSV and JSON and the figures when an output folder is given."""
+    import hipeq
+
+    spec = case.map
+    kwargs = {k: spec[k] for k in ("models", "reference", "tolerance") if k in spec}
+    grid = _in_case(lambda: hipeq.operating_map(system, case.feed, T=spec["temperature"], P=spec["pressure"],
+                                                key=case.key, progress=None, **kwargs), "[map]")
+    ref = grid.reference
+    section = Section(f"Operating map: {grid.key} over {len(grid.T)} temperatures x {len(grid.P)} pressures, "
+                      f"models {', '.join(grid.models)}",
+                      ["T [degC]", "ideal-gas limit [bar]", f"y {grid.key} {ref} at top P [-]",
+                       "band width at top P [-]"])
+    rows = np.unique(np.linspace(0, len(grid.T) - 1, min(len(grid.T), 12)).round().astype(int))
+    for i in rows:
+        limit = grid.ideal_limit_P[i] if grid.ideal_limit_P is not None else float("nan")
+        top = grid.y[ref][i, -1]
+        width = grid.band_width[i, -1] if grid.band_width is not None else float("nan")
+        section.rows.append([f"{grid.T[i] - 273.15:.1f}", number(limit / 1e5) if np.isfinite(limit) else "none",
+                             number(top, 5) if np.isfinite(top) else MARK_FAILED,
+                             number(width, 3) if np.isfinite(width) else "n/a"])
+    section.notes.append(f"ideal-gas limit: the pressure above which the ideal gas is off by more than "
+                         f"{grid.tolerance.describe()} against {ref}; 'none': not within the grid's pressures")
+    section.notes.extend(note for note in grid.ideal_limit_notes[:3] if note.strip())
+    failed = sum(grid.failures.values())
+    if failed:
+        section.failed = failed
+        for label, count in grid.failures.items():
+            if count:
+                section.notes.append(f"{label}: {count} state(s) {MARK_FAILED} (blank on the map); first: "
+                                     f"{grid.first_failure[label]}")
+    if folder is not None:
+        middle = float(grid.T[len(grid.T) // 2])
+        section.figures = [str(p) for p in grid.save_figures(folder, T=middle, stem="map")]
+        grid.to_csv(folder / "map.csv")
+        section.notes.append(f"grid written to {folder / 'map.csv'}; figures {folder / 'map.png'}, "
+                             f"{folder / 'map_yield.png'}")
+    section.data = {"key": grid.key, "reference": ref, "T [K]": grid.T.tolist(),
+                    "ideal_limit_P [Pa]": [float(v) for v in grid.ideal_limit_P], "failed_states": failed}
+    return section
+
+
+def adiabatic_section(case: Any, system: Any) -> Section:
+    """The adiabatic bed of [adiabatic] with the case's model and with the ideal gas."""
+    T_in = case.adiabatic["inlet_temperature"]
+    key = _key(case, system)
+    section = Section(f"Adiabatic bed from {T_in - 273.15:.1f} degC at {number(case.P / 1e5)} bar",
+                      ["model", "T out [degC]", "rise [K]", f"y {key} [-]", "status"])
+    for label, model_system in ((system.model.eos + " (case)", system), ("ideal", system.with_model(eos="ideal"))):
+        out = _in_case(lambda: model_system.adiabatic_equilibrium(case.feed, T_in, case.P), "[adiabatic]")
+        ok = out.status == 0
+        section.rows.append([label, f"{out.T - 273.15:.2f}" if ok else "-",
+                             f"{out.temperature_rise:+.2f}" if ok else "-",
+                             number(out.y[key], 5) if ok else "-", mark(int(out.status), bool(out.liquid_like))])
+        section.failed += 0 if ok else 1
+        section.data[label] = {"T_out [K]": out.T, "temperature_rise [K]": out.temperature_rise,
+                               f"y_{key} [-]": out.y[key], "status": int(out.status), "message": out.message}
+    section.notes.append("enthalpy in = enthalpy out at the case's pressure (ideal-gas enthalpies from the species' "
+                         "Cp data and formation enthalpies, plus the model's residual enthalpy)")
+    return section
+
+
+def beds_section(case: Any, system: Any, folder: Path | None) -> Section:
+    """Adiabatic beds in series ([beds]) with their table and, given an output folder, the figure."""
+    import hipeq
+
+    spec = case.beds
+    train = _in_case(lambda: hipeq.staged_beds(system, case.feed, case.P, list(spec["inlet_temperatures"]),
+                                               cooling=spec.get("cooling", "exchanger"),
+                                               quench_temperature=spec.get("quench_temperature"), key=case.key),
+                     "[beds]")
+    section = Section(f"Beds in series at {number(case.P / 1e5)} bar ({train.cooling} between beds); X = "
+                      f"conversion of {train.reactant}",
+                      ["bed", "T in [degC]", "T out [degC]", "X in [%]", "X out [%]", "removed after [kJ]",
+                       "quench [mol]", "status"])
+    for bed in train.beds:
+        section.rows.append([str(bed.number), f"{bed.T_in - 273.15:.1f}", f"{bed.T_out - 273.15:.2f}",
+                             f"{100 * bed.conversion_in:.2f}", f"{100 * bed.conversion_out:.2f}",
+                             number(bed.heat_removed_after / 1e3), number(bed.quench_added),
+                             mark(int(bed.outlet.status), bool(bed.outlet.liquid_like))])
+    if folder is not None:
+        path = folder / "beds.png"
+        figure = train.figure()
+        figure.savefig(path, dpi=150, bbox_inches="tight")
+        figure.savefig(path.with_suffix(".svg"), bbox_inches="tight")
+        section.figures = [str(path), str(path.with_suffix(".svg"))]
+        section.notes.append(f"figure written to {path}")
+    section.data = {"beds": train.table(), "P [Pa]": train.P, "cooling": train.cooling}
     return section
 
 
@@ -238,27 +334,52 @@ def _json_default(value: Any) -> Any:
     return str(value)
 
 
+def _out_folder(folder: str | None) -> Path | None:
+    """The output folder, created when its parent exists; refused when it is a file."""
+    if not folder:
+        return None
+    p = Path(folder)
+    if p.exists() and not p.is_dir():
+        raise InputError("--out", f"{p} is a file; give a folder")
+    if not p.exists():
+        if not p.parent.exists():
+            raise InputError("--out", f"folder {p.parent} does not exist; create it first")
+        p.mkdir()
+    if not os.access(p, os.W_OK):
+        raise InputError("--out", f"folder {p} is not writable")
+    return p
+
+
 def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
-             only: Sequence[str] | None = None, html_out: str | None = None) -> int:
+             only: Sequence[str] | None = None, html_out: str | None = None, folder: str | None = None) -> int:
     """Solve a case file and print its report; returns the exit code. ``only``: the job tables to run (default:
-    every table the case holds); ``json_out``, ``html_out``: files to write (checked before any solving)."""
+    every table the case holds); ``json_out``, ``html_out``: files to write; ``folder``: an output folder for
+    report.html, results.json, map.csv and the figures (paths checked before any solving)."""
     from hipeq.interfaces.casefile import load_case
 
     out = out or sys.stdout
     _check_outputs([json_out, html_out])
     case = load_case(path)
+    target = _out_folder(folder)
+    if target is not None:
+        json_out = json_out or str(target / "results.json")
+        html_out = html_out or str(target / "report.html")
     system = build_system(case)
     main_section, result = solve_section(case, system)
     sections = [main_section]
-    jobs = {"compare": compare_section, "sweep": sweep_section}
+    jobs = {"compare": lambda: compare_section(case, system), "sweep": lambda: sweep_section(case, system),
+            "map": lambda: map_section(case, system, target), "adiabatic": lambda: adiabatic_section(case, system),
+            "beds": lambda: beds_section(case, system, target)}
     for name in (only or case.tables()):
         if name not in case.tables():
             raise CaseError(f"[{name}]: the case has no [{name}] table (see `hipeq keys`)")
         if name in jobs:
-            sections.append(jobs[name](case, system))
+            sections.append(jobs[name]())
     header = f"hipeq | {case.title} | model {case.eos} | {STANDARD_STATE}"
     _print_sections(sections, header, out)
     _write_json(json_out, case, sections)
+    if json_out:
+        print(f"  results written to {json_out}", file=out)
     if html_out:
         from hipeq.interfaces.report import write_report
 
@@ -320,7 +441,19 @@ def show_keys(out: TextIO | None = None) -> int:
     return EXIT_OK
 
 
+CASE_COMMANDS = {
+    "run": "solve a case file: the equilibrium and every job table it holds",
+    "compare": "ideal gas against real-gas models at the case's conditions ([compare])",
+    "sweep": "the case over the axes of its [sweep] table",
+    "map": "operating map over temperature and pressure ([map]): yields, ideal-gas limit, band, figures",
+    "adiabatic": "adiabatic bed outlet at equilibrium ([adiabatic]), with the case's model and the ideal gas",
+    "beds": "adiabatic beds in series with cooling or quench between them ([beds])",
+}
+
 EXAMPLES = {
+    "map": "hipeq map examples/demo_plant.toml --out demo-output",
+    "adiabatic": "hipeq adiabatic examples/demo_plant.toml",
+    "beds": "hipeq beds examples/demo_plant.toml --out demo-output",
     "run": "hipeq run examples/demo_plant.toml --json out.json",
     "compare": "hipeq compare examples/demo_plant.toml",
     "sweep": "hipeq sweep examples/demo_plant.toml",
@@ -344,13 +477,13 @@ def build_parser() -> argparse.ArgumentParser:
         return sub.add_parser(name, help=help, description=help, epilog=f"example: {EXAMPLES[name]}",
                               formatter_class=argparse.RawDescriptionHelpFormatter)
 
-    for name, help in (("run", "solve a case file: the equilibrium and every job table it holds"),
-                       ("compare", "ideal gas against real-gas models at the case's conditions ([compare])"),
-                       ("sweep", "the case over the axes of its [sweep] table")):
+    for name, help in CASE_COMMANDS.items():
         p = command(name, help)
         p.add_argument("case", help="path of the TOML case file (see `hipeq keys`)")
         p.add_argument("--json", dest="json_out", metavar="FILE", help="also write the results (SI, units in keys)")
         p.add_argument("--html", dest="html_out", metavar="FILE", help="also write a one-page HTML report")
+        p.add_argument("--out", dest="folder", metavar="DIR", help="write report.html, results.json, tables and "
+                       "figures (PNG and SVG) into this folder (created when missing)")
     p = command("reaction", "standard-state thermochemistry of a reaction: K(T) over a temperature range")
     p.add_argument("reaction", help='e.g. "N2 + 3 H2 = 2 NH3"')
     p.add_argument("--from", dest="t_from", default="300 degC", help='first temperature, e.g. "300 degC"')
@@ -366,9 +499,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``hipeq`` command; returns the exit code."""
     args = build_parser().parse_args(argv)
     try:
-        if args.command in ("run", "compare", "sweep"):
+        if args.command in CASE_COMMANDS:
             only = None if args.command == "run" else [args.command]
-            return run_case(args.case, args.json_out, only=only, html_out=args.html_out)
+            return run_case(args.case, args.json_out, only=only, html_out=args.html_out, folder=args.folder)
         if args.command == "reaction":
             return show_reaction(args.reaction, args.t_from, args.t_to, args.count)
         if args.command == "species":

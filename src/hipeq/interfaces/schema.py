@@ -147,6 +147,10 @@ TABLES: tuple[Table, ...] = (
           "temperature between beds.", (
         Key("inlet_temperatures", "quantity-list", "inlet temperature of each bed", '["380 degC", "400 degC"]',
             required=True, dimension="temperature"),
+        Key("cooling", "choice", "between beds: an exchanger cools the gas, or cold fresh feed is mixed in",
+            '"exchanger"', choices=("exchanger", "quench")),
+        Key("quench_temperature", "quantity", "temperature of the cold feed mixed in (cooling = \"quench\")",
+            '"150 degC"', dimension="temperature"),
     )),
     Table("separator", "A vapour-liquid flash (no reaction) of the equilibrium gas, cooled to separator "
           "conditions.", (
