@@ -221,7 +221,12 @@ def map_section(case: Any, system: Any, folder: Path | None) -> Section:
                                      f"{grid.first_failure[label]}")
     if folder is not None:
         middle = float(grid.T[len(grid.T) // 2])
-        section.figures = [str(p) for p in grid.save_figures(folder, T=middle, stem="map")]
+        paths = grid.save_figures(folder, T=middle, stem="map")
+        captions = {"map": f"{grid.key} mole fraction with {ref} over temperature and pressure, and the ideal-gas "
+                           "error; the dashed line is the ideal-gas limit",
+                    "map_yield": f"{grid.key} mole fraction against pressure at {middle - 273.15:.0f} degC, per "
+                                 "model, with the real-gas band shaded"}
+        section.figures = [(str(p), captions.get(p.stem, p.stem)) for p in paths]
         grid.to_csv(folder / "map.csv")
         section.notes.append(f"grid written to {folder / 'map.csv'}; figures {folder / 'map.png'}, "
                              f"{folder / 'map_yield.png'}")
@@ -273,7 +278,8 @@ def beds_section(case: Any, system: Any, folder: Path | None) -> Section:
         figure = train.figure()
         figure.savefig(path, dpi=150, bbox_inches="tight")
         figure.savefig(path.with_suffix(".svg"), bbox_inches="tight")
-        section.figures = [str(path), str(path.with_suffix(".svg"))]
+        section.figures = [(str(path), "beds in series: the equilibrium curve, each bed's adiabatic line and "
+                                       "the cooling between beds")]
         section.notes.append(f"figure written to {path}")
     section.data = {"beds": train.table(), "P [Pa]": train.P, "cooling": train.cooling}
     return section

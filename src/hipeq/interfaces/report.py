@@ -20,14 +20,14 @@ def _mark_class(cell: str) -> str:
     return "mark-liquid" if cell == MARK_LIQUID else "mark-ok"
 
 
-def _embedded(paths: Sequence[str]) -> list[dict[str, str]]:
+def _embedded(figures: Sequence[tuple[str, str]]) -> list[dict[str, str]]:
     out = []
-    for path in paths:
+    for path, caption in figures:
         p = Path(path)
         if p.suffix.lower() != ".png" or not p.is_file():
             continue
         uri = "data:image/png;base64," + base64.b64encode(p.read_bytes()).decode("ascii")
-        out.append({"uri": uri, "caption": p.stem.replace("_", " ")})
+        out.append({"uri": uri, "caption": f"{caption} (also {p.with_suffix('.svg').name})"})
     return out
 
 

@@ -35,7 +35,7 @@ class Section:
     rows: list[list[str]] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
     data: dict[str, Any] = field(default_factory=dict)
-    figures: list[str] = field(default_factory=list)
+    figures: list[tuple[str, str]] = field(default_factory=list)  # (path, caption)
     failed: int = 0  # states in this section that did not converge
 
     def text(self) -> str:
