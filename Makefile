@@ -19,7 +19,7 @@ test: $(STAMP)
 	$(BIN)/python -m pytest -q -n 2 -m "not soak"
 
 demo: $(STAMP)
-	$(BIN)/hipeq run examples/demo_plant.toml
+	$(BIN)/hipeq demo --out demo-output
 
 bench: $(STAMP)
 	$(BIN)/python benchmarks/run.py

@@ -33,13 +33,15 @@ PROGRESS_AFTER = 2.0  # [s] a progress bar is shown when the whole run is expect
 @dataclass(frozen=True, eq=False)
 class ChunkAnswer:
     """What one chunk sends back (plain arrays, cheap to pickle): mole fractions ``y`` (n, nc) [-], amounts
-    (n, nc) [mol], compressibility factor ``Z`` (n,) [-], ``status`` (n,) (hipeq.Status codes), the messages of the
-    failed states (index in the chunk -> text) and the model's provenance."""
+    (n, nc) [mol], compressibility factor ``Z`` (n,) [-], ``status`` (n,) (hipeq.Status codes), ``liquid_like`` (n,)
+    (the answer took a liquid-like volume root: a liquid may form), the messages of the failed states (index in the
+    chunk -> text) and the model's provenance."""
 
     y: np.ndarray
     amounts: np.ndarray
     Z: np.ndarray
     status: np.ndarray
+    liquid_like: np.ndarray
     messages: dict[int, str]
     provenance: dict[str, Any]
 
@@ -55,7 +57,7 @@ def solve_chunk(system: ReactionSystem, feed: np.ndarray, T: np.ndarray, P: np.n
     provenance = {"eos": result.eos, "kij": nonzero_kij, "K_source": result.K_source,
                   "standard_state": result.standard_state}
     return ChunkAnswer(np.array(result.y.array), np.array(result.amounts.array), np.array(result.Z).reshape(-1),
-                       status, messages, provenance)
+                       status, np.array(result.liquid_like, dtype=bool).reshape(-1), messages, provenance)
 
 
 def chunk_bounds(n: int, chunk_states: int) -> list[tuple[int, int]]:

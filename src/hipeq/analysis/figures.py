@@ -80,6 +80,11 @@ def map_figure(m: OperatingMap, *, model: str | None = None, log_pressure: bool 
     ax.clabel(lines, fmt="%g", fontsize=8)
     fig.colorbar(filled, ax=ax, label=f"{k} at equilibrium, {model} [mol %]")
     ax.set_title(f"{k} mole fraction, {model}")
+    liquid = np.asarray(m.liquid_like.get(model, np.zeros(z.shape, dtype=bool)))
+    if liquid.any():  # where the answer took a liquid-like root: hatched, a liquid may form there
+        ax.contourf(T_c, P_bar, liquid.T.astype(float), levels=[0.5, 1.5], colors="none", hatches=["///"])
+        ax.contour(T_c, P_bar, liquid.T.astype(float), levels=[0.5], colors="red", linewidths=1.2)
+        ax.plot([], [], color="red", linewidth=1.2, label="hatched: liquid-like root (a liquid may form)")
     if error_panel:
         dev = np.abs(np.asarray(m.y[m.ideal_model]) - np.asarray(m.y[model]))
         dev = np.ma.masked_invalid(100.0 * dev)

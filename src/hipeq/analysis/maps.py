@@ -116,6 +116,8 @@ class OperatingMap:
         mole_fractions: label -> mole fractions (nT, nP, nc) [-], species along the last axis.
         deviation: label -> y[label] - y[reference] (nT, nP) [-].
         status: label -> hipeq.Status codes (nT, nP), 0 = converged.
+        liquid_like: label -> (nT, nP) bool, True where the answer took a liquid-like volume root (a liquid may
+            form: the one-gas answer is doubtful there).
         band_models: the credible real-gas models present (BAND_MODELS); band_low, band_high, band_width: their
             smallest and largest key-product mole fraction and the difference (nT, nP) [-], NaN when fewer than
             two are present or one of them failed at that state.
@@ -140,6 +142,7 @@ class OperatingMap:
     status: Mapping[str, np.ndarray] = field(repr=False)
     failures: Mapping[str, int] = field(repr=False)
     first_failure: Mapping[str, str] = field(repr=False)
+    liquid_like: Mapping[str, np.ndarray] = field(repr=False, default_factory=dict)
     band_models: tuple[str, ...] = ()
     band_low: np.ndarray = field(repr=False, default=None)  # type: ignore[assignment]
     band_high: np.ndarray = field(repr=False, default=None)  # type: ignore[assignment]
@@ -377,6 +380,7 @@ def operating_map(system: ReactionSystem, feed: Mapping[str, Any] | Any, T: Any,
     y: dict[str, np.ndarray] = {}
     fractions: dict[str, np.ndarray] = {}
     status: dict[str, np.ndarray] = {}
+    liquid: dict[str, np.ndarray] = {}
     failures: dict[str, int] = {}
     first: dict[str, str] = {}
     model_provenance: dict[str, Any] = {}
@@ -389,6 +393,7 @@ def operating_map(system: ReactionSystem, feed: Mapping[str, Any] | Any, T: Any,
         fractions[label] = _readonly(values)
         y[label] = _readonly(values[:, :, j_key].copy())
         status[label] = _readonly(codes)
+        liquid[label] = _readonly(np.concatenate([p.liquid_like for p in parts]).reshape(nT, nP) & (codes == 0))
         failures[label] = int(np.count_nonzero(codes))
         first[label] = ""
         for (a, _), part in zip(bounds, parts):
@@ -422,6 +427,7 @@ def operating_map(system: ReactionSystem, feed: Mapping[str, Any] | Any, T: Any,
         model_options=MappingProxyType({c.label: MappingProxyType(dict(c.options)) for c in choices}),
         reference=ref, y=MappingProxyType(y), mole_fractions=MappingProxyType(fractions),
         deviation=MappingProxyType(deviation), status=MappingProxyType(status),
+        liquid_like=MappingProxyType(liquid),
         failures=MappingProxyType(failures), first_failure=MappingProxyType(first), band_models=band_models,
         band_low=_readonly(low), band_high=_readonly(high), band_width=_readonly(high - low), ideal_model=ideal,
         ideal_limit_P=_readonly(limit), ideal_limit_notes=tuple(notes), tolerance=tol,

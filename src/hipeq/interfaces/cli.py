@@ -9,6 +9,7 @@
     hipeq reaction "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
     hipeq species NAME              a species record with the source of every datum
     hipeq keys                      the case-file reference (every table and key)
+    hipeq demo [--out DIR]          the bundled demo cases end to end, with their reports
 
 Exit codes: 0 every state converged; 1 some state did not converge (marked FAILED in the tables); 2 bad input
 (the message names the case-file table and key, or the option).
@@ -209,6 +210,11 @@ def map_section(case: Any, system: Any, folder: Path | None) -> Section:
         section.rows.append([f"{grid.T[i] - 273.15:.1f}", number(limit / 1e5) if np.isfinite(limit) else "none",
                              number(top, 5) if np.isfinite(top) else MARK_FAILED,
                              number(width, 3) if np.isfinite(width) else "n/a"])
+    liquid = {label: int(np.count_nonzero(grid.liquid_like[label])) for label in grid.models}
+    if any(liquid.values()):
+        section.notes.append("WARNING: liquid-like volume roots (a liquid may form; the one-gas answer is doubtful) "
+                             "in " + ", ".join(f"{count} states of {label}" for label, count in liquid.items()
+                                               if count) + "; hatched on the map figure")
     section.notes.append(f"ideal-gas limit: the pressure above which the ideal gas is off by more than "
                          f"{grid.tolerance.describe()} against {ref}; 'none': not within the grid's pressures")
     section.notes.extend(note for note in grid.ideal_limit_notes[:3] if note.strip())
@@ -230,7 +236,7 @@ def map_section(case: Any, system: Any, folder: Path | None) -> Section:
         grid.to_csv(folder / "map.csv")
         section.notes.append(f"grid written to {folder / 'map.csv'}; figures {folder / 'map.png'}, "
                              f"{folder / 'map_yield.png'}")
-    section.data = {"key": grid.key, "reference": ref, "T [K]": grid.T.tolist(),
+    section.data = {"key": grid.key, "reference": ref, "T [K]": grid.T.tolist(), "liquid_like_states": liquid,
                     "ideal_limit_P [Pa]": [float(v) for v in grid.ideal_limit_P], "failed_states": failed}
     return section
 
@@ -393,6 +399,30 @@ def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
     return EXIT_FAILED_STATE if any(s.failed for s in sections) else EXIT_OK
 
 
+def demo_cases() -> list[Path]:
+    """The bundled demo cases (invented scenarios: an ammonia loop, a CO2-to-methanol pilot)."""
+    found = sorted((Path(__file__).resolve().parent / "demo").glob("*.toml"))
+    return sorted(found, key=lambda p: p.name != "demo_plant.toml")  # the ammonia loop first
+
+
+def run_demo(folder: str = "demo-output", out: TextIO | None = None) -> int:
+    """Run every bundled demo case end to end into ``folder``/<case>/ and say where the reports are."""
+    out = out or sys.stdout
+    target = _out_folder(folder)
+    assert target is not None
+    codes, reports = [], []
+    for path in demo_cases():
+        print(f"=== demo case {path.name} ({path})", file=out)
+        codes.append(run_case(str(path), out=out, folder=str(target / path.stem)))
+        reports.append(target / path.stem / "report.html")
+        print("", file=out)
+    print("Demo reports (open in a browser; everything is embedded, no network needed):", file=out)
+    for report in reports:
+        print(f"  {report.resolve()}", file=out)
+    print("Copy a demo case to start your own: cp " + str(demo_cases()[0]) + " my_case.toml", file=out)
+    return max(codes)
+
+
 def show_reaction(reaction: str, t_from: str, t_to: str, count: int, out: TextIO | None = None) -> int:
     """Print K(T) of a reaction from Cp integrals and the constant-enthalpy van 't Hoff approximation."""
     from hipeq.data.thermochem import equilibrium_constant
@@ -466,6 +496,7 @@ EXAMPLES = {
     "reaction": 'hipeq reaction "CO + 2 H2 = CH3OH" --from "200 degC" --to "300 degC" --count 5',
     "species": "hipeq species methanol",
     "keys": "hipeq keys > casefile.md",
+    "demo": "hipeq demo --out demo-output",
 }
 
 
@@ -498,6 +529,10 @@ def build_parser() -> argparse.ArgumentParser:
     p = command("species", "a species record and the source of each datum")
     p.add_argument("name", help="name, formula or CAS number")
     command("keys", "print the case-file reference: every table and key, with units")
+    p = command("demo", "run the bundled demo cases (an invented ammonia loop and CO2-to-methanol pilot) end to "
+                        "end and write their reports")
+    p.add_argument("--out", dest="folder", default="demo-output", metavar="DIR",
+                   help="folder for the reports (default: demo-output)")
     return parser
 
 
@@ -512,6 +547,8 @@ def main(argv: Sequence[str] | None = None) -> int:
             return show_reaction(args.reaction, args.t_from, args.t_to, args.count)
         if args.command == "species":
             return show_species(args.name)
+        if args.command == "demo":
+            return run_demo(args.folder)
         return show_keys()
     except HipeqError as err:
         print(f"hipeq: error: {err}", file=sys.stderr)
