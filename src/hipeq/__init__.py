@@ -27,6 +27,8 @@ _PUBLIC = {
     "fugacity_coefficients": "hipeq.models.eos",
     "FugacityResult": "hipeq.models.eos",
     "build_model": "hipeq.models.eos",
+    "stability_test": "hipeq.models.stability",
+    "StabilityResult": "hipeq.models.stability",
     "ReactionSystem": "hipeq.solvers.system",
     "EquilibriumResult": "hipeq.solvers.result",
     "BatchResult": "hipeq.solvers.result",
