@@ -35,7 +35,8 @@ import math
 import numpy as np
 
 from hipeq._jit import entry, kernel
-from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_VIRIAL, OMEGA, ROOT_INVALID,
+from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_VIRIAL, OMEGA, OMEGA_A, OMEGA_B,
+                                   ROOT_INVALID,
                                    ROOT_LIQUID, TC, R, effective_critical, ln_phi_dn_tp, ln_phi_tp, tdep_into)
 
 TRIAL_NONE = -1  # no trial went below zero
@@ -54,6 +55,7 @@ PURE_TRACE = 1e-6  # weight of the other components in a nearly pure trial (rela
 STABILITY_OK = 0  # every trial converged (to the trivial solution or to a stationary point)
 STABILITY_PARTIAL = 1  # some trial did not converge; the verdict rests on the trials that did (and on tpd < 0)
 STABILITY_NO_STATE = 2  # the model has no physical state at the tested composition
+STABILITY_SCREENED = 3  # not tested: the cubic has one volume root at every composition of these components
 
 # columns of the integer summary (``ints``) and the float summary (``floats``) of one test
 I_STATUS, I_TRIAL, I_ITERATIONS, I_TRIAL_ROOT, I_FEED_ROOT = 0, 1, 2, 3, 4
@@ -249,12 +251,13 @@ def _trial_start(kind, T, P, z, present, comp, heaviest, W):
 
 
 @entry
-def stability_states(code, T, P, Z, comp, consts, kmat, trials, floats, ints):
+def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, ints):
     """Stability test of the states (T[k] [K], P[k] [Pa], Z[k] mole fractions) of one model: for each state
     ``trials[k]`` gets the trial composition of lowest tpd met (the tested composition itself when no trial
     went below it), ``floats[k]`` = (tpd, Z of that trial, Z of the tested phase) and ``ints[k]`` = (status,
-    trial kind or TRIAL_NONE, iterations, root of the trial, root of the tested phase). Serial; allocates its
-    work buffers once."""
+    trial kind or TRIAL_NONE, iterations, root of the trial, root of the tested phase). With ``screen`` a cubic
+    state whose present components all lie above their (k_ij-widened) critical bound (``_one_root_everywhere``)
+    is not tested (status STABILITY_SCREENED). Serial; allocates its work buffers once."""
     n, nc = Z.shape
     aij = np.empty((nc, nc))
     daij = np.empty((nc, nc))
@@ -308,6 +311,9 @@ def stability_states(code, T, P, Z, comp, consts, kmat, trials, floats, ints):
                 d[i] = 0.0
         if n_present < 2:
             continue  # one component: no other composition to split into
+        if screen and code == MODEL_CUBIC and _one_root_everywhere(T_k, aij, bi, consts, present):
+            ints[k, I_STATUS] = STABILITY_SCREENED
+            continue
         best[0] = 0.0
         best[1] = zf
         best[2] = rootf
@@ -337,6 +343,27 @@ def stability_states(code, T, P, Z, comp, consts, kmat, trials, floats, ints):
             trials[k, :] = z
             ints[k, I_TRIAL] = TRIAL_NONE
         ints[k, I_ITERATIONS] = total
+
+
+@kernel
+def _one_root_everywhere(T, aij, bi, consts, present):
+    """True when the one-fluid cubic has a single volume root at every composition of the present components:
+    a/(b R T) <= c max_i a_i/(b_i R T) < Omega_a/Omega_b with c = max(1, max_ij a_ij/sqrt(a_i a_j)) (the first
+    stage of ``hipeq.solvers._driver.several_roots_possible``; Michelsen & Mollerup 2007, ch. 3). Such a mixture
+    has no vapour-liquid split; a split between two dense supercritical fluids (gas-gas immiscibility) is not
+    excluded by it, which is why the screen is an option."""
+    nc = bi.shape[0]
+    limit = consts[OMEGA_A] / consts[OMEGA_B]
+    c = 1.0
+    for i in range(nc):
+        if present[i] and aij[i, i] > 0.0:
+            for j in range(i + 1, nc):
+                if present[j] and aij[j, j] > 0.0:
+                    c = max(c, aij[i, j] / math.sqrt(aij[i, i] * aij[j, j]))
+    for i in range(nc):
+        if present[i] and bi[i] > 0.0 and c * aij[i, i] / (bi[i] * R * T) >= limit:
+            return False
+    return True
 
 
 @kernel

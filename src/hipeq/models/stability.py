@@ -113,17 +113,18 @@ class StabilityResult:
         return f"StabilityResult({n} states, {n - int(np.count_nonzero(self.stable))} unstable)"
 
 
-def run_states(model: CompiledModel, T: np.ndarray, P: np.ndarray, Y: np.ndarray
+def run_states(model: CompiledModel, T: np.ndarray, P: np.ndarray, Y: np.ndarray, screen: bool = False
                ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The compiled test on flat arrays (T [K], P [Pa], Y (n, nc) mole fractions, already checked): returns
-    (trials (n, nc), floats (n, 3), ints (n, 5)) as laid out in ``hipeq.models._stability``."""
+    (trials (n, nc), floats (n, 3), ints (n, 5)) as laid out in ``hipeq.models._stability``. ``screen``: skip
+    states where the cubic has one volume root at every composition of the present components."""
     n, nc = Y.shape
     trials = np.empty((n, nc))
     floats = np.empty((n, S.N_FLOAT))
     ints = np.empty((n, S.N_INT), dtype=np.int64)
     S.stability_states(model.code, np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
                        np.ascontiguousarray(Y, dtype=float), np.asarray(model.comp), np.asarray(model.consts),
-                       np.asarray(model.kmat), trials, floats, ints)
+                       np.asarray(model.kmat), bool(screen), trials, floats, ints)
     return trials, floats, ints
 
 
@@ -135,7 +136,7 @@ def result_from_arrays(species: tuple[str, ...], shape: tuple[int, ...], T: np.n
     stable = tpd >= -TPD_TOLERANCE
     phase = np.array([_ROOT_LABELS[int(r)] for r in ints[:, S.I_TRIAL_ROOT]], dtype=object)
     found = np.array([_trial_name(int(k), species) for k in ints[:, S.I_TRIAL]], dtype=object)
-    complete = ints[:, S.I_STATUS] == S.STABILITY_OK
+    complete = (ints[:, S.I_STATUS] == S.STABILITY_OK) | (ints[:, S.I_STATUS] == S.STABILITY_SCREENED)
     if not shape:
         return StabilityResult(bool(stable[0]), float(tpd[0]), trials[0], str(phase[0]),
                                float(floats[0, S.F_TRIAL_Z]), float(floats[0, S.F_FEED_Z]), str(found[0]),

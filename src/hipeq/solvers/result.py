@@ -279,6 +279,18 @@ class _Common:
         s_res = (h_res - g_res)/T (Michelsen & Mollerup 2007, ch. 2). NaN where the state did not converge."""
         return self._residual[1]
 
+    @cached_property
+    def stability(self) -> Any:
+        """Tangent-plane stability test of the answer as one phase (Michelsen 1982; a
+        :class:`~hipeq.models.stability.StabilityResult`, arrays over a batch): ``stable``, the lowest
+        tangent-plane distance ``tpd`` [-] and, when unstable, the ``trial`` composition that shows it (a second
+        phase, usually a liquid, would form). Computed on first access from the system's model at the answer's
+        T, P and y (about 20 us per state for seven species, docs/phases.md); states with invalid input are
+        not tested (``complete`` False, tpd NaN)."""
+        from hipeq.solvers.phase_results import answer_stability
+
+        return answer_stability(self)
+
     @property
     def eos(self) -> str:
         """Name of the fugacity model."""
@@ -330,6 +342,7 @@ class _Common:
         out = {name: _jsonable(getattr(self, name)) for name in self._PUBLIC}
         out["message"] = _jsonable(self.message if isinstance(self, EquilibriumResult) else self.messages)
         out["units"] = dict(UNITS)
+        out["stability"] = self.stability.to_dict()
         return out
 
     def to_json(self, **kwargs: Any) -> str:
@@ -423,7 +436,7 @@ class EquilibriumResult(_Common):
                      + "; ".join(self.frozen_reactions))
         if self.liquid_like:
             text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
-        return text
+        return text + _unstable_caution(self.stability, None)
 
     def __repr__(self) -> str:
         ys = ", ".join(f"{n}={v:.4g}" for n, v in self.y.items())
@@ -514,7 +527,7 @@ class BatchResult(_Common):
                      f"largest equilibrium residual {worst:.2e}")
         if bool(self.liquid_like.flat[flat]):
             text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
-        return text
+        return text + _unstable_caution(self.stability, flat)
 
     @property
     def messages(self) -> list[str]:
@@ -547,6 +560,13 @@ def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndar
         method_requested=method_requested, scheme=scheme, root=ROOT_NAMES.get(root, "none"),
         liquid_like=bool(liquid), fixed_volume=fixed_volume, frozen_reactions=frozen, _info=info)
     return result
+
+
+def _unstable_caution(stability: Any, flat: int | None) -> str:
+    """The caution added to a message when the answer is not stable as one phase."""
+    from hipeq.solvers.phase_results import unstable_text
+
+    return unstable_text(stability, flat)
 
 
 _STATUSES = tuple(Status)
