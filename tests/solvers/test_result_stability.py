@@ -20,7 +20,7 @@ METHANOL = ["CO", "CO2", "H2", "H2O", "CH3OH", "CH4", "N2"]
 def test_scalar_result_reports_an_unstable_answer():
     system = hipeq.ReactionSystem(METHANOL, reactions=["CO + 2 H2 = CH3OH", "CO2 + H2 = CO + H2O"], eos="PR")
     result = system.equilibrium(feed={"CO": 0.05, "CO2": 0.08, "H2": 0.6, "H2O": 0.127, "CH3OH": 0.12,
-                                      "CH4": 0.013, "N2": 0.01}, T=423.15, P=300e5)
+                                      "CH4": 0.013, "N2": 0.01}, T=423.15, P=300e5, phases="one")
     assert result.converged
     assert not result.stability.stable
     assert result.stability.tpd < 0
