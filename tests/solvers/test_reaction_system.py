@@ -185,8 +185,12 @@ def test_ln_k_override() -> None:
 
 def test_liquid_like_state_is_flagged() -> None:
     system = hipeq.ReactionSystem(METHANOL, reactions=METHANOL_REACTIONS[:2])
-    res = system.equilibrium(feed={"CO": 0.1, "CO2": 0.1, "H2": 0.7, "H2O": 0.01}, T=473.15, P=1000e5)
+    feed = {"CO": 0.1, "CO2": 0.1, "H2": 0.7, "H2O": 0.01}
+    res = system.equilibrium(feed=feed, T=473.15, P=1000e5, phases="one")  # the one-phase answer's flag
     assert res.converged and res.liquid_like and "liquid-like" in res.message
+    assert not res.stability.stable and "not stable as one phase" in res.message
+    split = system.equilibrium(feed=feed, T=473.15, P=1000e5)  # phases="auto": it splits
+    assert split.phase_count == 2 and "two phases" in split.message
 
 
 def test_no_physical_state_is_a_status_not_nan() -> None:

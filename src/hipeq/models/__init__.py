@@ -5,7 +5,9 @@ Public names: :func:`build_model` (a :class:`CompiledModel` for the solver kerne
 """
 from hipeq.models.eos import (CUBICS, MODELS, CompiledModel, CubicForm, FugacityResult, alpha_slope, build_model,
                               fugacity_coefficients)
+from hipeq.models.stability import StabilityResult, stability_test
 from hipeq.models.kij import KijAssignment, assign_kij, databank_kij, databank_kij_values
 
 __all__ = ["build_model", "fugacity_coefficients", "CompiledModel", "FugacityResult", "MODELS", "CUBICS",
-           "CubicForm", "alpha_slope", "KijAssignment", "assign_kij", "databank_kij", "databank_kij_values"]
+           "CubicForm", "alpha_slope", "KijAssignment", "assign_kij", "databank_kij", "databank_kij_values",
+           "stability_test", "StabilityResult"]

@@ -164,6 +164,14 @@ class CompiledModel:
         :func:`fugacity_coefficients`; this skips the model look-up)."""
         return _evaluate(self, T, P, y)
 
+    def stability_test(self, T: Any, P: Any, y: Any) -> Any:
+        """Tangent-plane stability test of mixtures y [-] at T [K], P [Pa] with this model (Michelsen 1982; see
+        :func:`hipeq.models.stability.stability_test`); returns a
+        :class:`~hipeq.models.stability.StabilityResult`."""
+        from hipeq.models.stability import model_stability
+
+        return model_stability(self, T, P, y)
+
 
 class _Component(NamedTuple):
     name: str

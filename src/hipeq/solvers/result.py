@@ -341,6 +341,35 @@ class _Common:
         """Molar internal energy U / n [J/mol]."""
         return self.U / self.n_total
 
+    @cached_property
+    def stability(self) -> Any:
+        """Tangent-plane stability test of the answer as one phase (Michelsen 1982; a
+        :class:`~hipeq.models.stability.StabilityResult`, arrays over a batch): ``stable``, the lowest
+        tangent-plane distance ``tpd`` [-] and, when unstable, the ``trial`` composition that shows it (a second
+        phase, usually a liquid, would form). Computed on first access from the system's model at the answer's
+        T, P and y (about 20 us per state for seven species, docs/phases.md); states with invalid input are
+        not tested (``complete`` False, tpd NaN)."""
+        from hipeq.solvers.phase_results import answer_stability
+
+        return answer_stability(self)
+
+    @property
+    def phases(self) -> Any:
+        """The phases of the answer (:class:`~hipeq.models.phases.Phase`: name, fraction, amount, y, phi, Z,
+        molar_volume, root, liquid_like), vapour first: one phase, or a vapour and a liquid when the one-phase
+        answer was unstable and the two-phase solve (``phases="auto"``) answered. A batch gives a list over the
+        states (flat order) of such tuples."""
+        from hipeq.solvers.phase_results import answer_phases
+
+        return answer_phases(self)
+
+    @property
+    def phase_count(self) -> Any:
+        """Number of phases of the answer (1 or 2; an int array over a batch)."""
+        from hipeq.solvers.phase_results import answer_phase_count
+
+        return answer_phase_count(self)
+
     @property
     def eos(self) -> str:
         """Name of the fugacity model."""
@@ -393,6 +422,10 @@ class _Common:
         out = {name: _jsonable(getattr(self, name)) for name in self._PUBLIC}
         out["message"] = _jsonable(self.message if isinstance(self, EquilibriumResult) else self.messages)
         out["units"] = dict(UNITS)
+        out["stability"] = self.stability.to_dict()
+        out["phase_count"] = _jsonable(self.phase_count)
+        if isinstance(self, EquilibriumResult):
+            out["phases"] = [phase.to_dict() for phase in self.phases]
         return out
 
     def to_json(self, **kwargs: Any) -> str:
@@ -485,9 +518,9 @@ class EquilibriumResult(_Common):
         if self.frozen_reactions:
             text += ("; cannot proceed (a species on each side is absent and cannot form): "
                      + "; ".join(self.frozen_reactions))
-        if self.liquid_like:
+        if self.liquid_like and self.root != "two-phase":
             text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
-        return text
+        return text + _unstable_caution(self, None)
 
     def __repr__(self) -> str:
         ys = ", ".join(f"{n}={v:.4g}" for n, v in self.y.items())
@@ -554,8 +587,8 @@ class BatchResult(_Common):
     def root(self) -> np.ndarray:
         """Volume root of the equation of state at the answer, per state ("single", "gas-like", "liquid-like",
         "none")."""
-        names = np.array(["none", "single", "gas-like", "liquid-like"])
-        return names[np.clip(self._roots, -1, 2) + 1]
+        names = np.array(["two-phase", "none", "single", "gas-like", "liquid-like"])  # -2: a two-phase answer
+        return names[np.clip(self._roots, -2, 2) + 2]
 
     @property
     def n_failed(self) -> int:
@@ -576,9 +609,9 @@ class BatchResult(_Common):
             text += (f"; stopped after {int(self.iterations.flat[flat])} Newton iterations at "
                      f"T = {float(self.T.flat[flat]):.6g} K, P = {float(self.P.flat[flat]):.6g} Pa with the "
                      f"largest equilibrium residual {worst:.2e}")
-        if bool(self.liquid_like.flat[flat]):
+        if bool(self.liquid_like.flat[flat]) and int(self._roots.flat[flat]) != -2:
             text += "; caution: the equation of state chose a liquid-like root (the one-gas assumption is doubtful)"
-        return text
+        return text + _unstable_caution(self, flat)
 
     @property
     def messages(self) -> list[str]:
@@ -611,6 +644,14 @@ def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndar
         method_requested=method_requested, scheme=scheme, root=ROOT_NAMES.get(root, "none"),
         liquid_like=bool(liquid), fixed_volume=fixed_volume, frozen_reactions=frozen, _info=info)
     return result
+
+
+def _unstable_caution(result: Any, flat: int | None) -> str:
+    """What a message adds about phases: the split of a two-phase answer, or the caution when a one-phase answer
+    is not stable."""
+    from hipeq.solvers.phase_results import unstable_text
+
+    return unstable_text(result, flat)
 
 
 _STATUSES = tuple(Status)

@@ -252,7 +252,7 @@ class ReactionSystem:
     def equilibrium(self, feed: Mapping[str, Any] | Any, T: Any, P: Any = None, V: Any = None, *,
                     method: str = "extent", scheme: str = "coupled", tol: float = DEFAULT_TOL,
                     max_iterations: int = 100, initial_guess: Mapping[str, float] | EquilibriumResult | None = None,
-                    raise_on_failure: bool = False) -> EquilibriumResult | BatchResult:
+                    raise_on_failure: bool = False, phases: str = "auto") -> EquilibriumResult | BatchResult:
         """Equilibrium composition of ``feed`` at temperature T and pressure P, or in a sealed vessel of volume V.
 
         Args:
@@ -275,6 +275,13 @@ class ReactionSystem:
             raise_on_failure: raise NotConvergedError (with ``.result``) instead of returning a result with
                 ``converged == False`` (for a batch: when any state failed). Default False: check
                 ``result.converged``.
+            phases: "auto" (default): at fixed pressure with a cubic model, a converged answer is tested for
+                stability as one phase (tangent-plane distance, Michelsen 1982; skipped where the cubic has one
+                volume root at every composition of the species present, so no liquid can form) and, when
+                unstable, solved again as a vapour and a liquid in equilibrium with each other and with every
+                reaction (``result.phases``, ``result.phase_count``; :mod:`hipeq.solvers.two_phase`). "one":
+                one phase only, as the equation of state's root gives it (``result.stability`` still tells
+                whether it would split). Cost in docs/phases.md.
 
         The conditions solved are sum_i nu_ki [g0_i + ln(P/P0) + ln y_i + ln phi_i] = 0 for every independent
         reaction k (extent) or the equivalent element-potential conditions (gibbs), P0 = 1 bar (Smith & Missen
@@ -286,6 +293,7 @@ class ReactionSystem:
         numpy numbers, or unit strings), else a :class:`BatchResult` over their broadcast shape.
         """
         value, fixed_volume = self._check_PV(P, V)
+        _check_phases(phases)
         T_si = to_si(T, "temperature", "T")
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
         scalar = type(T_si) is float and type(value_si) is float
@@ -300,14 +308,14 @@ class ReactionSystem:
                                                   "neighbour")
             batch = self.equilibrium_batch(feed, T_si, value_si if not fixed_volume else None,
                                            value_si if fixed_volume else None, method=method, scheme=scheme,
-                                           tol=tol, max_iterations=max_iterations)
+                                           tol=tol, max_iterations=max_iterations, phases=phases)
             if raise_on_failure and batch.n_failed:
                 first = int(np.flatnonzero(batch.status.ravel() != 0)[0])
                 raise NotConvergedError(f"{batch.n_failed} of {len(batch)} states did not converge; the first, state "
                                         f"{first}: {batch.message(first)}", batch)
             return batch
         return self._solve_scalar(feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations,
-                                  initial_guess, raise_on_failure)
+                                  initial_guess, raise_on_failure, phases)
 
     def feed_vector(self, feed: Mapping[str, Any] | Any) -> np.ndarray:
         """One feed as amounts [mol] in the order of ``species_names``, validated as :meth:`equilibrium` does
@@ -370,8 +378,8 @@ class ReactionSystem:
         return np.ascontiguousarray(values)
 
     def _solve_scalar(self, feed: Any, T: float, value: float, fixed_volume: bool, method: str, scheme: str,
-                      tol: float, max_iterations: int, initial_guess: Any, raise_on_failure: bool
-                      ) -> EquilibriumResult:
+                      tol: float, max_iterations: int, initial_guess: Any, raise_on_failure: bool,
+                      phases: str = "auto") -> EquilibriumResult:
         self._check_T(T)
         if fixed_volume:
             if not (value > 0.0 and math.isfinite(value)):
@@ -395,6 +403,10 @@ class ReactionSystem:
                     _EMPTY if guess is None else guess, options, row, ints)
         result = scalar_result(self._info, layout, row, ints, T, n0, method, scheme, fixed_volume,
                                self._frozen(known[pat], method))
+        if phases == "auto" and result.status == 0 and not fixed_volume:
+            from hipeq.solvers.phase_results import split_unstable
+
+            result = split_unstable(self, result)
         if result.status != 0 and raise_on_failure:
             raise NotConvergedError(result.message, result)
         return result
@@ -422,7 +434,7 @@ class ReactionSystem:
     # ------------------------------------------------------------------------------------------------------
     def equilibrium_batch(self, feed: Mapping[str, Any] | Any, T: Any, P: Any = None, V: Any = None, *,
                           method: str = "extent", scheme: str = "coupled", tol: float = DEFAULT_TOL,
-                          max_iterations: int = 100) -> BatchResult:
+                          max_iterations: int = 100, phases: str = "auto") -> BatchResult:
         """Equilibrium of many states at once in the compiled core; always returns a :class:`BatchResult`.
 
         T [K], P [Pa] or V [m3] and the feed amounts [mol] (a mapping of scalars or arrays, or an array with
@@ -434,9 +446,15 @@ class ReactionSystem:
         from hipeq.solvers._batch import solve_batch
 
         value, fixed_volume = self._check_PV(P, V)
+        _check_phases(phases)
         T_si = to_si(T, "temperature", "T")
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
-        return solve_batch(self, feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations)
+        result = solve_batch(self, feed, T_si, value_si, fixed_volume, method, scheme, tol, max_iterations)
+        if phases == "auto" and not fixed_volume:
+            from hipeq.solvers.phase_results import split_unstable
+
+            result = split_unstable(self, result)
+        return result
 
     def mixture_properties(self, amounts: Any, T: Any, P: Any = None, V: Any = None) -> MixtureProperties:
         """Enthalpy, entropy, internal energy and Gibbs energy of a gas mixture of this system's species at T [K]
@@ -541,3 +559,9 @@ def _rebuild_system(records: tuple[Species, ...], reactions: tuple[Reaction, ...
 
 
 _EMPTY = np.zeros(0)
+PHASES = ("auto", "one")
+
+
+def _check_phases(phases: Any) -> None:
+    if phases not in PHASES:
+        raise InputError("phases", f"must be one of {', '.join(map(repr, PHASES))}, got {phases!r}")

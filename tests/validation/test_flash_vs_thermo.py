@@ -1,0 +1,105 @@
+"""The two-phase flash, bubble and dew points against thermo's ``FlashVL`` (thermo 0.6, C. Bell,
+https://github.com/CalebBell/thermo) with the same cubic (``PRMIX``), the same constants (our species records'
+Tc, Pc, omega) and the same k_ij (tests/validation/thermo_cases.py sets thermo up the same way for ln phi).
+
+Same equations and constants, and both flashes converge to rounding, so the phase compositions and the vapour
+fraction must agree closely: 1e-7 absolute in mole fractions and phase fractions. thermo's labels of the two
+phases ('gas', 'liquid') do not always follow the volume, so its phases are sorted by Z before comparing.
+"""
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from thermo import CEOSGas, CEOSLiquid, ChemicalConstantsPackage, FlashVL, HeatCapacityGas, PRMIX
+
+import hipeq
+from hipeq.models import _kernels as K
+from hipeq.models import build_model
+from hipeq.models.phases import bubble_point, dew_point, flash
+
+AMMONIA = ["H2", "N2", "NH3"]
+METHANOL = ["CH3OH", "H2O", "CO2", "H2"]
+
+
+def thermo_flasher(names):
+    model = build_model(names, "PR")
+    comp = np.asarray(model.comp)
+    Tcs, Pcs, omegas = comp[:, K.TC].tolist(), comp[:, K.PC].tolist(), comp[:, K.OMEGA].tolist()
+    records = [hipeq.species(n) for n in names]
+    constants = ChemicalConstantsPackage(Tcs=Tcs, Pcs=Pcs, omegas=omegas, MWs=[r.molar_mass * 1e3 for r in records],
+                                         CASs=[r.cas for r in records])
+    # heat capacities do not enter a T, P flash; thermo's phase objects only need one each
+    cps = [HeatCapacityGas(poly_fit=(50.0, 1000.0, [0.0] * 8 + [29.0])) for _ in names]
+    kw = dict(eos_kwargs=dict(Tcs=Tcs, Pcs=Pcs, omegas=omegas, kijs=np.asarray(model.kmat).tolist()),
+              HeatCapacityGases=cps)
+    return FlashVL(constants, None, liquid=CEOSLiquid(PRMIX, **kw), gas=CEOSGas(PRMIX, **kw))
+
+
+def compare(names, z, T, P):
+    ours = flash(names, z, T, P)
+    theirs = thermo_flasher(names).flash(T=T, P=P, zs=list(z))
+    where = f"{names} z={z} T={T} P={P:g}"
+    assert ours.phase_count == theirs.phase_count, where
+    assert ours.converged, where
+    phases = sorted(zip(theirs.betas, theirs.phases), key=lambda bp: -bp[1].Z())  # the vapour first
+    for mine, (beta, phase) in zip(ours.phases, phases):
+        np.testing.assert_allclose(mine.mole_fractions, phase.zs, atol=1e-7, err_msg=where)
+        assert mine.fraction == pytest.approx(beta, abs=1e-7), where
+        assert mine.Z == pytest.approx(phase.Z(), rel=1e-7), where
+    if ours.phase_count == 2:
+        v, l = ours.phases
+        f_v = np.log(v.mole_fractions) + v.ln_phis
+        f_l = np.log(l.mole_fractions) + l.ln_phis
+        np.testing.assert_allclose(f_v, f_l, atol=1e-10, err_msg=where)  # equal fugacities
+        np.testing.assert_allclose(v.fraction * v.mole_fractions + l.fraction * l.mole_fractions, z / np.sum(z),
+                                   atol=1e-12)
+    return ours
+
+
+@pytest.mark.parametrize("T_C", [-5.0, 10.0, 30.0])
+@pytest.mark.parametrize("P_bar", [150.0, 250.0])
+def test_ammonia_separator_matches_thermo(T_C, P_bar):
+    out = compare(AMMONIA, np.array([0.615, 0.205, 0.18]), T_C + 273.15, P_bar * 1e5)
+    assert out.phase_count == 2 and out.phases[1].y["NH3"] > 0.9
+
+
+@pytest.mark.parametrize("T, P, z", [
+    (423.15, 300e5, [0.12, 0.13, 0.08, 0.67]),   # the issue's methanol loop at 150 degC
+    (313.15, 80e5, [0.05, 0.05, 0.10, 0.80]),    # a cooled loop gas at 40 degC
+    (473.15, 100e5, [0.30, 0.40, 0.10, 0.20]),   # condensate-rich at 200 degC
+    (523.15, 80e5, [0.05, 0.03, 0.10, 0.82]),    # converter gas: one phase
+])
+def test_methanol_water_co2_hydrogen_matches_thermo(T, P, z):
+    compare(METHANOL, np.array(z), T, P)
+
+
+def test_bubble_and_dew_points_bracket_the_two_phase_region():
+    x = np.array([0.015, 0.005, 0.98])
+    T = 273.15
+    bubble = bubble_point(AMMONIA, x, T=T)
+    dew = dew_point(AMMONIA, x, T=T)
+    assert bubble.converged and dew.converged
+    assert dew.P < bubble.P
+    assert flash(AMMONIA, x, T, 0.99 * dew.P).phase_count == 1
+    assert flash(AMMONIA, x, T, 0.99 * dew.P).vapour_fraction == 1.0
+    assert flash(AMMONIA, x, T, 1.01 * bubble.P).phase_count == 1
+    assert flash(AMMONIA, x, T, 1.01 * bubble.P).vapour_fraction == 0.0
+    near_dew = flash(AMMONIA, x, T, 1.0001 * dew.P)
+    near_bubble = flash(AMMONIA, x, T, 0.999 * bubble.P)
+    assert near_dew.phase_count == near_bubble.phase_count == 2
+    assert near_dew.vapour_fraction > 0.95 and near_bubble.vapour_fraction < 0.01
+    # thermo's saturation flashes (vapour fraction 1 and 0 at T) give the same pressures
+    flasher = thermo_flasher(AMMONIA)
+    assert dew.P == pytest.approx(flasher.flash(T=T, VF=1.0, zs=list(x)).P, rel=1e-6)
+    assert bubble.P == pytest.approx(flasher.flash(T=T, VF=0.0, zs=list(x)).P, rel=1e-6)
+    # the incipient phases satisfy the equal-fugacity conditions: the flash at that pressure agrees
+    assert dew.incipient["NH3"] > 0.999
+
+
+def test_dew_temperature_at_fixed_pressure():
+    y = np.array([0.70, 0.20, 0.10])
+    dew = dew_point(AMMONIA, y, P=150e5)
+    assert dew.converged
+    assert flash(AMMONIA, y, dew.T * 1.01, 150e5).phase_count == 1
+    assert flash(AMMONIA, y, dew.T * 0.99, 150e5).phase_count == 2
+    assert dew.T == pytest.approx(thermo_flasher(AMMONIA).flash(P=150e5, VF=1.0, zs=list(y)).T, rel=1e-6)
