@@ -6,6 +6,7 @@
     hipeq map CASE.toml --out DIR   an operating map ([map]) with figures and the grid as CSV
     hipeq adiabatic CASE.toml       the adiabatic outlet ([adiabatic]), case model and ideal gas
     hipeq beds CASE.toml            adiabatic beds in series ([beds]) with their figure
+    hipeq separator CASE.toml       the equilibrium gas flashed at separator conditions ([separator])
     hipeq reaction "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
     hipeq species NAME              a species record with the source of every datum
     hipeq keys                      the case-file reference (every table and key)
@@ -98,6 +99,12 @@ def solve_section(case: Any, system: Any) -> tuple[Section, Any]:
         section.notes.append(f"{reaction}: K = {number(result.K[k])}, K_phi = {number(result.K_phi[k])}"
                              + (f", K_y = {number(result.K_y[k])}" if ok else ""))
     section.notes.append(result.message)
+    if ok and result.phase_count == 2:
+        vapour, liquid = result.phases[0], result.phases[1]
+        section.notes.append(f"WARNING: two phases at equilibrium: vapour {100 * vapour.fraction:.2f} % and liquid "
+                             f"{100 * liquid.fraction:.2f} % of the moles; liquid: " + ", ".join(
+                                 f"{n} {liquid.y[n]:.4f}" for n in shown if liquid.y[n] >= 1e-4)
+                             + " (mole fractions); the table shows the overall composition")
     if result.liquid_like:
         section.notes.append("WARNING: the answer took a liquid-like volume root; a liquid may form and the "
                              "one-gas answer is doubtful")
@@ -291,6 +298,39 @@ def beds_section(case: Any, system: Any, folder: Path | None) -> Section:
     return section
 
 
+def separator_section(case: Any, system: Any, result: Any) -> Section:
+    """A flash of the equilibrium gas at separator conditions ([separator]): vapour and liquid without reaction."""
+    import hipeq
+
+    spec = case.separator
+    T, P = spec["temperature"], spec.get("pressure", case.P)
+    section = Section(f"Separator: the equilibrium gas flashed at {T - 273.15:.1f} degC and {number(P / 1e5)} bar "
+                      "(no reaction)", ["species", "feed [mol]", "vapour [-]", "liquid [-]", "K = y/x [-]"])
+    if result.status != 0:
+        section.notes.append(f"{MARK_FAILED}: the equilibrium upstream did not converge; no flash")
+        section.failed = 1
+        return section
+    split = _in_case(lambda: hipeq.flash(list(system.species_names), result.amounts.array, T, P,
+                                         **case.model), "[separator]")
+    vapour = split.phases[0]
+    liquid = split.phases[1] if split.phase_count == 2 else None
+    for name in case.report_species or system.species_names:
+        section.rows.append([name, number(result.amounts[name]), number(vapour.y[name], 5),
+                             number(liquid.y[name], 5) if liquid else "-",
+                             number(split.K[name]) if liquid and split.K else "-"])
+    if liquid is None:
+        section.notes.append(f"one phase ({vapour.name}, root {vapour.root}): nothing condenses")
+    else:
+        section.notes.append(f"two phases: vapour {100 * vapour.fraction:.3f} % of the moles, liquid "
+                             f"{100 * liquid.fraction:.3f} %; largest |ln f_V - ln f_L| "
+                             f"{split.max_fugacity_residual:.1e}")
+    if not split.converged:
+        section.failed = 1
+        section.notes.append(f"{MARK_FAILED}: the flash did not converge in {split.iterations} iterations")
+    section.data = split.to_dict()
+    return section
+
+
 def _key(case: Any, system: Any) -> str:
     from hipeq.analysis._common import key_product
 
@@ -381,7 +421,8 @@ def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
     sections = [main_section]
     jobs = {"compare": lambda: compare_section(case, system), "sweep": lambda: sweep_section(case, system),
             "map": lambda: map_section(case, system, target), "adiabatic": lambda: adiabatic_section(case, system),
-            "beds": lambda: beds_section(case, system, target)}
+            "beds": lambda: beds_section(case, system, target),
+            "separator": lambda: separator_section(case, system, result)}
     for name in (only or case.tables()):
         if name not in case.tables():
             raise CaseError(f"[{name}]: the case has no [{name}] table (see `hipeq keys`)")
@@ -425,7 +466,7 @@ def run_demo(folder: str = "demo-output", out: TextIO | None = None) -> int:
 
 def show_reaction(reaction: str, t_from: str, t_to: str, count: int, out: TextIO | None = None) -> int:
     """Print K(T) of a reaction from Cp integrals and the constant-enthalpy van 't Hoff approximation."""
-    from hipeq.data.thermochem import equilibrium_constant
+    from hipeq.data.thermochem import equilibrium_constant, reaction_enthalpy, reaction_entropy, reaction_gibbs
     from hipeq.units import parse_quantity
 
     out = out or sys.stdout
@@ -436,16 +477,20 @@ def show_reaction(reaction: str, t_from: str, t_to: str, count: int, out: TextIO
     try:
         k = equilibrium_constant(reaction, T)
         kv = equilibrium_constant(reaction, T, method="van-t-hoff")
+        dH = np.atleast_1d(reaction_enthalpy(reaction, T))
+        dS = np.atleast_1d(reaction_entropy(reaction, T))
+        dG = np.atleast_1d(reaction_gibbs(reaction, T))
     except InputError as err:
         if err.field == "T":  # the API's advice (extrapolate=True) is for Python users
             raise InputError("--from/--to", str(err).split(": ", 1)[-1].split("; pass extrapolate")[0]
                              + "; choose temperatures inside that range") from None
         raise InputError("reaction", str(err)) from None
-    print(f"hipeq | K(T) of {reaction} | {STANDARD_STATE}", file=out)
-    rows = [[f"{t - 273.15:.1f}", f"{t:.2f}", number(a), number(b), f"{100 * (b / a - 1):+.2f}"]
-            for t, a, b in zip(T, k, kv)]
-    section = Section("", ["T [degC]", "T [K]", "K (Cp integral) [-]", "K (van 't Hoff) [-]", "difference [%]"],
-                      rows)
+    print(f"hipeq | standard-state thermochemistry of {reaction} | {STANDARD_STATE}; per mole of reaction as "
+          "written; van 't Hoff: constant dH0 from 298.15 K", file=out)
+    rows = [[f"{t - 273.15:.1f}", f"{t:.2f}", f"{h / 1e3:.3f}", f"{e:.3f}", f"{g / 1e3:.3f}", number(a), number(b),
+             f"{100 * (b / a - 1):+.2f}"] for t, h, e, g, a, b in zip(T, dH, dS, dG, k, kv)]
+    section = Section("", ["T [degC]", "T [K]", "dH0 [kJ/mol]", "dS0 [J/(mol K)]", "dG0 [kJ/mol]",
+                           "K (Cp integral) [-]", "K (van 't Hoff) [-]", "difference [%]"], rows)
     print(section.text().split("\n", 2)[2], file=out)
     return EXIT_OK
 
@@ -484,12 +529,14 @@ CASE_COMMANDS = {
     "map": "operating map over temperature and pressure ([map]): yields, ideal-gas limit, band, figures",
     "adiabatic": "adiabatic bed outlet at equilibrium ([adiabatic]), with the case's model and the ideal gas",
     "beds": "adiabatic beds in series with cooling or quench between them ([beds])",
+    "separator": "vapour-liquid flash of the equilibrium gas at separator conditions ([separator])",
 }
 
 EXAMPLES = {
     "map": "hipeq map examples/demo_plant.toml --out demo-output",
     "adiabatic": "hipeq adiabatic examples/demo_plant.toml",
     "beds": "hipeq beds examples/demo_plant.toml --out demo-output",
+    "separator": "hipeq separator examples/demo_plant.toml",
     "run": "hipeq run examples/demo_plant.toml --json out.json",
     "compare": "hipeq compare examples/demo_plant.toml",
     "sweep": "hipeq sweep examples/demo_plant.toml",
