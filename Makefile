@@ -6,7 +6,7 @@ STAMP   := $(VENV)/.installed
 # numba's cache: hipeq chooses the folder itself and keys it by the kernel sources (src/hipeq/_cache.py), the same
 # folder for make targets and plain runs; nothing to set here (see DEVELOPERS.md, "The compiled-code cache")
 
-.PHONY: test demo bench soak clean browser
+.PHONY: test demo bench soak clean browser validation-docs
 
 $(STAMP): pyproject.toml
 	test -d $(VENV) || $(PY) -m venv $(VENV)
@@ -23,6 +23,10 @@ demo: $(STAMP)
 
 bench: $(STAMP)
 	$(BIN)/python benchmarks/run.py
+
+# the validation tables and figures of docs/, regenerated through hipeq.score_models (docs/tools/validation_docs.py)
+validation-docs: $(STAMP)
+	$(BIN)/python docs/tools/validation_docs.py --eos
 
 soak: $(STAMP)
 	HYPOTHESIS_PROFILE=soak $(BIN)/python -m pytest -q -n 2 -m soak tests/properties

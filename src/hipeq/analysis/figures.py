@@ -5,6 +5,8 @@
 - :func:`yield_figure`: the key-product mole fraction against pressure at one temperature, one line per model,
   the real-gas band shaded and measured points overlaid where hipeq ships data for the feed
   (:mod:`hipeq.data.measured`);
+- :func:`parity_figure`, :func:`error_figure`: model against measurement and error against pressure, one marker
+  per model, for the :class:`~hipeq.analysis.scoring.Scores` of :func:`hipeq.score_models`;
 - :func:`save`: PNG and SVG side by side.
 
 Every figure carries the standard state and the caution: equilibrium is a thermodynamic limit, not a design
@@ -26,6 +28,7 @@ from hipeq.units import to_si
 
 if TYPE_CHECKING:
     from hipeq.analysis.maps import OperatingMap
+    from hipeq.analysis.scoring import Scores
 
 KELVIN_OFFSET = 273.15
 BAR = 1e5  # [Pa]
@@ -185,3 +188,96 @@ def save(fig: Figure, path: str | Path, dpi: int = 150) -> list[Path]:
         fig.savefig(target, dpi=dpi)
         written.append(target)
     return written
+
+
+_MARKERS = ("o", "s", "^", "D", "v", "P", "X", "<", ">", "*")
+
+
+def _score_points(scores: Scores, models: Any) -> list[str]:
+    labels = list(scores.ranking if models is None else models)
+    unknown = [m for m in labels if m not in scores.errors]
+    if unknown:
+        raise InputError("models", f"not scored: {', '.join(unknown)}; scored: {', '.join(scores.labels)}")
+    return labels
+
+
+def _model_style(k: int) -> dict[str, Any]:
+    return dict(marker=_MARKERS[k % len(_MARKERS)], color=_COLOURS[k % len(_COLOURS)] if k < 6 else f"C{k}",
+                linestyle="none", ms=6.5, mfc="none", mew=1.5)
+
+
+def parity_figure(scores: Scores, *, models: Any = None, width: float = 6.8) -> Figure:
+    """Model against measurement [%] (mole percent for y, percent for conversion), one marker per model, the
+    parity line and +-1 / +-3 point lines; points flagged "from memory" are marked with a grey cross behind.
+    ``models``: the labels to draw (default: all, in rank order)."""
+    labels = _score_points(scores, models)
+    fig = Figure(figsize=(width, width * 0.92), layout="constrained")
+    ax = fig.subplots()
+    x = 100 * scores.measured
+    top = float(np.nanmax([np.nanmax(x)] + [np.nanmax(100 * scores.predicted[m]) for m in labels])) * 1.05
+    grid = np.array([0.0, top])
+    ax.plot(grid, grid, color="black", linewidth=1.2, label="parity")
+    for d, style in ((1.0, ":"), (3.0, "--")):
+        ax.plot(grid, grid + d, color="0.55", linewidth=0.9, linestyle=style, label=f"±{d:g} point")
+        ax.plot(grid, grid - d, color="0.55", linewidth=0.9, linestyle=style)
+    if scores.from_memory.any():
+        ax.plot(x[scores.from_memory], x[scores.from_memory], linestyle="none", marker="x", ms=13, color="0.7",
+                mew=1.0, label="measured value from memory", zorder=0)
+    for k, label in enumerate(labels):
+        st = scores.summary[label]["all"]
+        ax.plot(x, 100 * scores.predicted[label], label=f"{label} (RMS {st.rms:.2f}, max {st.max:.2f})",
+                **_model_style(k))
+    ax.set_xlim(0, top)
+    ax.set_ylim(0, top)
+    ax.set_aspect("equal")
+    kinds = sorted({q.split()[0] for q in scores.quantity})
+    what = " / ".join({"y": "mole fraction [mol %]", "conversion": "conversion [%]"}[k] for k in kinds)
+    ax.set_xlabel(f"measured {what}")
+    ax.set_ylabel(f"model {what}")
+    ax.set_title("Model against measurement: " + ", ".join(sorted(set(scores.quantity))), fontsize=11)
+    ax.grid(True, alpha=0.3)
+    ax.legend(loc="upper left", fontsize=8)
+    fig.text(0.01, 0.002, FOOTER, fontsize=6.5, color="0.3", ha="left", va="bottom", wrap=True)
+    fig.get_layout_engine().set(rect=(0, 0.045, 1, 0.955))
+    return fig
+
+
+def error_figure(scores: Scores, *, models: Any = None, log_pressure: bool | None = None,
+                 width: float = 8.0) -> Figure:
+    """Error [percentage points, model minus measurement] against pressure [bar], one marker per model (slightly
+    spread sideways so that models at one pressure stay apart), the zero line, and the stated measurement
+    uncertainty as grey bars where the data give one. ``log_pressure``: logarithmic pressure axis (default: when
+    the pressures span more than a factor of 5)."""
+    from matplotlib.ticker import FuncFormatter
+
+    labels = _score_points(scores, models)
+    fig = Figure(figsize=(width, 5.0), layout="constrained")
+    ax = fig.subplots()
+    P_bar = scores.P / BAR
+    n = len(labels)
+    if log_pressure is None:
+        log_pressure = bool(np.nanmax(P_bar) > 5 * np.nanmin(P_bar))
+    span = (np.log(np.nanmax(P_bar) / np.nanmin(P_bar)) if log_pressure else np.ptp(P_bar)) or 1.0
+    for k, label in enumerate(labels):
+        step = 0.012 * span * (k - (n - 1) / 2)  # spread models sideways by about 1 % of the axis each
+        x = P_bar * np.exp(step) if log_pressure else P_bar + step
+        ax.plot(x, scores.errors[label], label=label, **_model_style(k))
+    u = 100 * scores.uncertainty
+    if np.isfinite(u).any():
+        ok = np.isfinite(u)
+        ax.errorbar(P_bar[ok], np.zeros(ok.sum()), yerr=u[ok], fmt="none", ecolor="0.6", elinewidth=5, alpha=0.5,
+                    label="stated measurement uncertainty", zorder=0)
+    ax.axhline(0.0, color="black", linewidth=1.0)
+    if log_pressure:
+        ax.set_xscale("log")
+        plain = FuncFormatter(lambda v, _: f"{v:g}")
+        ax.xaxis.set_major_formatter(plain)
+        ax.xaxis.set_minor_formatter(FuncFormatter(lambda v, _: f"{v:g}" if f"{v:g}"[0] in "25" else ""))
+    ax.set_xlabel("pressure [bar]")
+    ax.set_ylabel("model - measured [percentage points]")
+    ax.set_title("Error against pressure: " + ", ".join(sorted(set(scores.quantity))), fontsize=11)
+    ax.grid(True, which="both", alpha=0.3)
+    ax.legend(loc="lower left", fontsize=8, ncols=2)
+    fig.text(0.01, 0.002, FOOTER, fontsize=7, color="0.3", ha="left", va="bottom")
+    fig.get_layout_engine().set(rect=(0, 0.04, 1, 0.96))
+    return fig

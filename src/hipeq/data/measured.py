@@ -1,22 +1,23 @@
 """Measured equilibrium compositions shipped with hipeq, for overlaying on figures.
 
-Each data set is a CSV file of this package whose ``#`` header lines cite its source; the same files are kept in
-``tests/validation/data/`` for the validation tests (tests/analysis/test_maps.py checks that the copies agree).
+The data sets are the bundled files of :mod:`hipeq.data.measurements` (``hipeq/data/datasets/*.csv``, each with
+its citation, units and flags); this module presents those that measure one key product's mole fraction over one
+feed ratio as :class:`MeasuredSet` records. The same values are kept in ``tests/validation/data/`` for the
+validation tests (tests/analysis/test_maps.py checks that the copies agree).
 
-| file | what | source |
+| data set | what | source |
 |---|---|---|
-| ammonia_equilibrium_larson_dodge_1923.csv | NH3 mole % over a 1:3 N2:H2 feed, 325-500 degC, 10-100 atm | Larson & Dodge, J. Am. Chem. Soc. 45 (1923) 2918 |
-| ammonia_equilibrium_larson_1924_high_pressure.csv | the same, 400-500 degC, 300-1000 atm (values from memory, +-0.5 mole-percent point) | Larson, J. Am. Chem. Soc. 46 (1924) 367 |
+| ammonia-larson-dodge-1923 | NH3 mole % over a 1:3 N2:H2 feed, 325-500 degC, 10-100 atm | Larson & Dodge, J. Am. Chem. Soc. 45 (1923) 2918 |
+| ammonia-larson-1924 | the same, 400-500 degC, 300-1000 atm (values from memory, +-0.5 mole-percent point) | Larson, J. Am. Chem. Soc. 46 (1924) 367 |
 """
 from __future__ import annotations
 
-import csv
-import io
 from collections.abc import Mapping
 from dataclasses import dataclass
-from importlib import resources
 
 import numpy as np
+
+from hipeq.data.measurements import Dataset, bundled_datasets
 
 ATM = 101_325.0  # [Pa], exact (BIPM SI Brochure, 9th ed. 2019)
 KELVIN_OFFSET = 273.15
@@ -36,29 +37,23 @@ class MeasuredSet:
     citation: str
 
 
-# file -> (legend label, key species, feed ratio)
-_FILES = {
-    "ammonia_equilibrium_larson_dodge_1923.csv": ("Larson & Dodge 1923", "NH3", {"N2": 1.0, "H2": 3.0}),
-    "ammonia_equilibrium_larson_1924_high_pressure.csv": ("Larson 1924 (from memory, ±0.5 mol-% pt)", "NH3",
-                                                          {"N2": 1.0, "H2": 3.0}),
-}
-
-
-def _read(name: str) -> MeasuredSet:
-    label, key, feed = _FILES[name]
-    text = resources.files("hipeq.data").joinpath(name).read_text(encoding="utf-8")
-    comments = [line[1:].strip() for line in text.splitlines() if line.startswith("#")]
-    rows = list(csv.DictReader(io.StringIO("\n".join(line for line in text.splitlines()
-                                                     if line and not line.startswith("#")))))
-    T = np.array([float(r["T_degC"]) + KELVIN_OFFSET for r in rows])
-    P = np.array([float(r["P_atm"]) * ATM for r in rows])
-    y = np.array([float(r["mol_percent_NH3"]) / 100.0 for r in rows])
-    return MeasuredSet(label, key, dict(feed), T, P, y, " ".join(comments))
+def _as_set(data: Dataset) -> MeasuredSet | None:
+    """The data set as one key product's mole fraction over one feed ratio at given T, P (else None)."""
+    ys = [(kind, name) for kind, name in data.measured if kind == "y"]
+    if len(ys) != 1 or data.P is None:
+        return None
+    ratios = data.feed / data.feed.sum(axis=1, keepdims=True)
+    if np.ptp(ratios, axis=0).max() > 1e-9:
+        return None
+    feed = {name: float(v) for name, v in zip(data.feed_species, data.feed[0])}
+    return MeasuredSet(data.label, ys[0][1], feed, data.T, data.P, data.measured[ys[0]],
+                       " ".join(f"{k}: {v}" for k, v in data.meta.items() if k in ("citation", "transcription")))
 
 
 def measured_sets() -> tuple[MeasuredSet, ...]:
     """Every shipped data set."""
-    return tuple(_read(name) for name in _FILES)
+    found = [m for m in (_as_set(d) for d in bundled_datasets().values()) if m is not None]
+    return tuple(sorted(found, key=lambda m: (m.key, float(np.min(m.P)))))
 
 
 def matching_sets(feed: Mapping[str, float], key: str, rtol: float = 1e-6) -> tuple[MeasuredSet, ...]:

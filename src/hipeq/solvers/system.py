@@ -30,6 +30,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from hipeq.data.reactions import Reaction, check_independent, element_matrix, independent_reactions
+from hipeq.data.ksources import ResolvedK, resolve_k_source
 from hipeq.data.reactions import stoichiometric_matrix
 from hipeq.data.species import Species
 from hipeq.data.species import species as lookup_species
@@ -85,6 +86,10 @@ class ReactionSystem:
             and returning ln K of ``reactions`` (the kept, independent ones, standard state ideal gas at 1 bar)
             with shape (n, n_reactions). Gibbs minimisation then uses the least change of the species' standard
             Gibbs energies that reproduces these ln K.
+        K_source: a named source of K instead (``"graaf-1986"``, ``"graaf-winkelman-2016"``,
+            ``"gillespie-beattie-1930"``, a species-data table ``"JANAF"`` or ``{"Hf": "JANAF", "S0": "CRC"}``;
+            :func:`hipeq.k_sources` lists them, :mod:`hipeq.data.ksources` says how each is applied), resolved for
+            the kept reactions; ``"bundled"`` or None: the data layer. Results name it in ``K_source``.
 
     Raises InputError naming the field (species, reactions, eos, kij, ln_K), UnknownSpeciesError.
     """
@@ -92,7 +97,8 @@ class ReactionSystem:
     def __init__(self, species: Sequence[str | Species], reactions: Sequence[str | Reaction] | None = None,
                  eos: str = "PR", kij: Any = None, quantum_hydrogen: bool = False, *,
                  hydrogen_omega: float | None = None, volume_translation: str | None = None,
-                 pure_eos: str | None = None, ln_K: Callable[[np.ndarray], Any] | None = None) -> None:
+                 pure_eos: str | None = None, ln_K: Callable[[np.ndarray], Any] | None = None,
+                 K_source: str | Mapping[str, str] | None = None) -> None:
         from hipeq.models import build_model
 
         self._model_options = {"eos": eos, "kij": kij, "quantum_hydrogen": quantum_hydrogen,
@@ -116,6 +122,10 @@ class ReactionSystem:
         self.reactions, self.dropped_reactions = self._reactions(reactions, names, notes)
         nc, nr = len(names), len(self.reactions)
         self.nu = stoichiometric_matrix(self.reactions, names) if nr else np.zeros((0, nc))
+        if K_source is not None and not (isinstance(K_source, str) and K_source.strip().lower() == "bundled"):
+            if ln_K is not None:
+                raise InputError("K_source", "give ln_K or K_source, not both")
+            ln_K = resolve_k_source(K_source, self.reactions, names)
         self.elements, self.element_matrix = element_matrix(names)
         self.model = build_model(names, eos, kij, quantum_hydrogen, hydrogen_omega=hydrogen_omega,
                                  volume_translation=volume_translation, pure_eos=pure_eos)
@@ -143,7 +153,8 @@ class ReactionSystem:
         self._frozen_cache: dict[tuple[int, str], tuple[str, ...]] = {}
         self._bits = np.array([1 << k for k in range(nc)], dtype=np.int64)
         self.notes = tuple(notes)
-        k_source = ("user ln_K override" if ln_K is not None else
+        k_source = (ln_K.description if isinstance(ln_K, ResolvedK) else
+                    "user ln_K override" if ln_K is not None else
                     "ln K = -sum_i nu_i G0_i(T)/(R T) from hipeq.data.thermochem (Cp integrals), tabulated in "
                     f"ln T with quintic Hermite interpolation (max deviation {self.table.max_error:.1e})")
         self._info = _SystemInfo(
