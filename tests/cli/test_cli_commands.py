@@ -154,3 +154,19 @@ def test_single_axis_and_sealed_vessel_sweeps_work_or_say_why(tmp_path):
     assert "V [m3]" in swept.stdout
     wrong = hipeq("sweep", str(case(tmp_path, vessel + '[sweep]\npressure = ["1 bar", "2 bar", 2]\n', "w.toml")))
     assert wrong.returncode == 2 and "[sweep] pressure" in wrong.stderr and "sealed vessel" in wrong.stderr
+
+
+def test_score_lists_scores_and_names_bad_data(tmp_path):
+    listed = hipeq("score", "--list")
+    assert listed.returncode == 0 and "ammonia-larson-1924" in listed.stdout
+    case_file = ROOT / "examples" / "score_ammonia.toml"
+    done = hipeq("score", str(case_file), "--out", str(tmp_path / "scores"))
+    assert done.returncode == 0, done.stderr
+    assert "PR78+E-PPR78+Peneloux" in done.stdout.split("rank")[1].splitlines()[2]  # ranked first
+    for name in ("report.html", "results.json", "parity.png", "errors.svg", "scores_summary.csv"):
+        assert (tmp_path / "scores" / name).is_file(), name
+    bad = tmp_path / "mine.csv"
+    text = (ROOT / "examples" / "measurements_invented.csv").read_text()
+    bad.write_text(text.replace("P [MPa]", "P [MPag]", 1))
+    refused = hipeq("score", str(bad), "--models", "PR")
+    assert refused.returncode == 2 and "mine.csv" in refused.stderr and "Traceback" not in refused.stderr

@@ -128,7 +128,7 @@ def _value(key: Key, value: Any, where: str, species: tuple[str, ...]) -> Any:
         if value not in species:
             raise InputError(where, f"must be one of [mixture] species ({', '.join(species)}), got {value!r}")
         return value
-    if kind in ("species-list", "reaction-list", "models"):
+    if kind in ("species-list", "reaction-list", "models", "text-list"):
         if not (isinstance(value, list) and value and all(isinstance(v, str) for v in value)):
             raise InputError(where, f"expected a non-empty list of strings, e.g. {key.example}")
         if kind == "species-list" and species:
@@ -198,11 +198,37 @@ def _states(where: str, *axes: np.ndarray | None) -> None:
         raise InputError(where, f"{count:,} states is more than {MAX_STATES:,}; use fewer points per axis")
 
 
-def parse_case(doc: Mapping[str, Any], path: str = "") -> Case:
-    """Check a case document (a dict as read from TOML) against the schema and convert it to SI units."""
+@dataclass(frozen=True)
+class ScoringCase:
+    """A case file that only scores models against data ([case] and [scoring]): ``data`` (names or resolved
+    paths), ``models``, ``bands`` [Pa] or None."""
+
+    title: str
+    data: tuple[str, ...]
+    models: tuple[str, ...] | None
+    bands: np.ndarray | None
+    notes: str = ""
+    path: str = ""
+
+
+def parse_case(doc: Mapping[str, Any], path: str = "") -> Case | ScoringCase:
+    """Check a case document (a dict as read from TOML) against the schema and convert it to SI units. A case
+    holding only [case] and [scoring] gives a :class:`ScoringCase`."""
     for name in doc:
         if name not in TABLE_BY_NAME:
             raise InputError(f"[{name}]", f"unknown table; allowed tables: {', '.join(t.name for t in TABLES)}")
+    if "scoring" in doc and set(doc) <= {"case", "scoring"}:
+        scoring = _read_table(TABLE_BY_NAME["scoring"], doc["scoring"], ())
+        info = _read_table(TABLE_BY_NAME["case"], doc.get("case", {}), ())
+        base = Path(path).parent
+        data = tuple(str(base / d) if d.lower().endswith((".csv", ".txt")) and not Path(d).is_absolute() else d
+                     for d in scoring["data"])
+        return ScoringCase(title=info.get("title", Path(path).stem or "scoring"), data=data,
+                           models=scoring.get("models"), bands=scoring.get("bands"), notes=info.get("notes", ""),
+                           path=path)
+    if "scoring" in doc:
+        raise InputError("[scoring]", "a scoring case holds only [case] and [scoring]; put the equilibrium "
+                                      "tables in another case file")
     for table in TABLES:
         if table.required and table.name not in doc:
             raise InputError(f"[{table.name}]", f"missing table ({table.help})")
@@ -272,7 +298,7 @@ def parse_case(doc: Mapping[str, Any], path: str = "") -> Case:
                 separator=parts.get("separator"), notes=info.get("notes", ""), path=path)
 
 
-def load_case(path: str | Path) -> Case:
+def load_case(path: str | Path) -> Case | ScoringCase:
     """Read and check a TOML case file (UTF-8); errors name the file, the table and the key."""
     p = Path(path)
     if p.is_dir():

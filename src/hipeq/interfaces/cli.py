@@ -7,6 +7,7 @@
     hipeq adiabatic CASE.toml       the adiabatic outlet ([adiabatic]), case model and ideal gas
     hipeq beds CASE.toml            adiabatic beds in series ([beds]) with their figure
     hipeq separator CASE.toml       the equilibrium gas flashed at separator conditions ([separator])
+    hipeq score DATA... [--models M...]   models against measured equilibria (bundled sets or your CSV)
     hipeq reaction "N2 + 3 H2 = 2 NH3" --from "300 degC" --to "600 degC" --count 7
     hipeq species NAME              a species record with the source of every datum
     hipeq keys                      the case-file reference (every table and key)
@@ -331,6 +332,75 @@ def separator_section(case: Any, system: Any, result: Any) -> Section:
     return section
 
 
+def score_section(data: Sequence[str], models: Sequence[str] | None, bands: Any,
+                  folder: Path | None) -> Section:
+    """Models scored against measured equilibria (:func:`hipeq.score_models`): statistics per model, ranking,
+    the worst points, and given an output folder the parity and error figures and the CSV tables."""
+    import hipeq
+
+    kwargs: dict[str, Any] = {}
+    if models:
+        kwargs["models"] = list(models)
+    if bands is not None:
+        kwargs["bands"] = list(bands)
+    scores = _in_case(lambda: hipeq.score_models(list(data), **kwargs))
+    section = Section(f"Models against {len(scores)} measured points ({', '.join(scores.datasets)}); errors in "
+                      "percentage points, model minus measurement",
+                      ["rank", "model", "points", "failed", "bias", "mean |error|", "RMS", "max |error|"])
+    for rank, label in enumerate(scores.ranking, 1):
+        stats = scores.summary[label]["all"]
+        section.rows.append([str(rank), label, str(stats.n), str(stats.failed), f"{stats.bias:+.3f}",
+                             f"{stats.mae:.3f}", f"{stats.rms:.3f}", f"{stats.max:.3f}"])
+        section.failed += stats.failed
+    best = scores.ranking[0]
+    bands_text = "; ".join(f"{band}: RMS {stats.rms:.3f}, max {stats.max:.3f}"
+                           for band, stats in scores.summary[best].items() if band != "all" and stats.n)
+    section.notes.append(f"best ({best}) by pressure band: {bands_text}")
+    for row in scores.worst(3, model=best):
+        note = f" ({row['note']})" if row.get("note") else ""
+        section.notes.append(f"worst for {best}: {row['dataset']} line {row['line']}, T = {row['T']:.2f} K, "
+                             f"P = {row['P'] / 1e5:.4g} bar: {row['quantity']} measured {row['measured']:.4f}, "
+                             f"model {row['predicted']:.4f}{note}")
+    if any(scores.from_memory):
+        section.notes.append("some points are flagged as values recalled from memory in their data file")
+    if folder is not None:
+        from hipeq.analysis.figures import error_figure, parity_figure, save
+
+        paths = save(parity_figure(scores), folder / "parity") + save(error_figure(scores), folder / "errors")
+        scores.to_csv(folder / "scores_points.csv")
+        scores.summary_csv(folder / "scores_summary.csv")
+        captions = {"parity": "model against measurement, one marker per model, with the parity line",
+                    "errors": "error against pressure per model, with the stated measurement uncertainty"}
+        section.figures = [(str(p), captions[p.stem]) for p in paths if p.suffix == ".png"]
+        section.notes.append(f"tables {folder / 'scores_summary.csv'}, {folder / 'scores_points.csv'}; figures "
+                             f"{folder / 'parity.png'}, {folder / 'errors.png'}")
+    section.data = scores.to_dict()
+    return section
+
+
+def run_scoring(data: Sequence[str], models: Sequence[str] | None, json_out: str | None, html_out: str | None,
+                folder: str | None, out: TextIO | None = None, title: str = "Scoring models against data",
+                bands: Any = None) -> int:
+    """``hipeq score``: models against data sets, printed, and written where asked."""
+    out = out or sys.stdout
+    _check_outputs([json_out, html_out])
+    target = _out_folder(folder)
+    if target is not None:
+        json_out = json_out or str(target / "results.json")
+        html_out = html_out or str(target / "report.html")
+    section = score_section(data, models, bands, target)
+    _print_sections([section], f"hipeq | {title} | {STANDARD_STATE}", out)
+    if json_out:
+        payload = {"title": title, "standard_state": STANDARD_STATE, "caution": CAUTION, "scores": section.data}
+        Path(json_out).write_text(json.dumps(payload, indent=2, default=_json_default))
+        print(f"  results written to {json_out}", file=out)
+    if html_out:
+        from hipeq.interfaces.report import write_scoring_report
+
+        print(f"  report written to {write_scoring_report(html_out, title, section)}", file=out)
+    return EXIT_FAILED_STATE if section.failed else EXIT_OK
+
+
 def _key(case: Any, system: Any) -> str:
     from hipeq.analysis._common import key_product
 
@@ -360,7 +430,7 @@ def _print_sections(sections: Sequence[Section], header: str, out: TextIO) -> No
         print("", file=out)
         print(section.text(), file=out)
     print("", file=out)
-    lines = [LEGEND]
+    lines = [LEGEND] if any(s.columns and s.columns[-1] == "status" for s in sections) else []
     failed = sum(s.failed for s in sections)
     if failed:
         lines.append(f"{failed} state(s) {MARK_FAILED}: their values are not shown; exit code 1")
@@ -409,9 +479,15 @@ def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
     report.html, results.json, map.csv and the figures (paths checked before any solving)."""
     from hipeq.interfaces.casefile import load_case
 
+    from hipeq.interfaces.casefile import ScoringCase
+
     out = out or sys.stdout
     _check_outputs([json_out, html_out])
     case = load_case(path)
+    if isinstance(case, ScoringCase):
+        return run_scoring(case.data, case.models, json_out, html_out, folder, out, case.title, case.bands)
+    if only == ["score"]:
+        raise CaseError(f"{path}: `hipeq score` takes data-set names, CSV files or a case holding [scoring]")
     target = _out_folder(folder)
     if target is not None:
         json_out = json_out or str(target / "results.json")
@@ -438,6 +514,22 @@ def run_case(path: str, json_out: str | None = None, out: TextIO | None = None,
 
         print(f"  report written to {write_report(html_out, case, result, sections)}", file=out)
     return EXIT_FAILED_STATE if any(s.failed for s in sections) else EXIT_OK
+
+
+def _score_command(args: argparse.Namespace) -> int:
+    import hipeq
+
+    if args.list:
+        for name, title in hipeq.datasets().items():
+            print(f"{name}: {title}")
+        return EXIT_OK
+    if not args.data:
+        raise InputError("data", "give data-set names (see `hipeq score --list`), CSV files or a case file")
+    if len(args.data) == 1 and args.data[0].lower().endswith(".toml"):
+        if args.models:
+            raise InputError("--models", "a case file names its models in [scoring] models")
+        return run_case(args.data[0], args.json_out, only=["score"], html_out=args.html_out, folder=args.folder)
+    return run_scoring(args.data, args.models, args.json_out, args.html_out, args.folder)
 
 
 def demo_cases() -> list[Path]:
@@ -542,6 +634,7 @@ EXAMPLES = {
     "sweep": "hipeq sweep examples/demo_plant.toml",
     "reaction": 'hipeq reaction "CO + 2 H2 = CH3OH" --from "200 degC" --to "300 degC" --count 5',
     "species": "hipeq species methanol",
+    "score": 'hipeq score ammonia-larson-1924 --models ideal PR SRK "PR78+E-PPR78+Peneloux" --out scores',
     "keys": "hipeq keys > casefile.md",
     "demo": "hipeq demo --out demo-output",
 }
@@ -573,6 +666,15 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--from", dest="t_from", default="300 degC", help='first temperature, e.g. "300 degC"')
     p.add_argument("--to", dest="t_to", default="600 degC", help='last temperature, e.g. "600 degC"')
     p.add_argument("--count", type=int, default=7, help="number of temperatures (2-10000)")
+    p = command("score", "score models against measured equilibria: bundled data sets, your CSV files, or a case "
+                         "file holding [scoring]")
+    p.add_argument("data", nargs="*", help="data-set names, CSV files (layout: docs/scoring.md) or one case file")
+    p.add_argument("--models", nargs="+", metavar="MODEL", help='models to score, e.g. ideal PR SRK '
+                   '"PR78+E-PPR78+Peneloux" (default: the ideal gas and the credible real-gas models)')
+    p.add_argument("--list", action="store_true", help="list the bundled data sets and exit")
+    p.add_argument("--json", dest="json_out", metavar="FILE", help="also write the scores (JSON)")
+    p.add_argument("--html", dest="html_out", metavar="FILE", help="also write a one-page HTML report")
+    p.add_argument("--out", dest="folder", metavar="DIR", help="write the report, tables and figures here")
     p = command("species", "a species record and the source of each datum")
     p.add_argument("name", help="name, formula or CAS number")
     command("keys", "print the case-file reference: every table and key, with units")
@@ -594,6 +696,8 @@ def main(argv: Sequence[str] | None = None) -> int:
             return show_reaction(args.reaction, args.t_from, args.t_to, args.count)
         if args.command == "species":
             return show_species(args.name)
+        if args.command == "score":
+            return _score_command(args)
         if args.command == "demo":
             return run_demo(args.folder)
         return show_keys()

@@ -56,3 +56,24 @@ def write_report(path: str | Path, case: Any, result: Any, sections: Sequence[Se
     target = Path(path)
     target.write_text(render_report(case, result, sections), encoding="utf-8")
     return target
+
+
+def write_scoring_report(path: str | Path, title: str, section: Section) -> Path:
+    """The report of a scoring run (no case gas: the data sets and models are the case)."""
+    import jinja2
+
+    from hipeq import __version__
+
+    env = jinja2.Environment(loader=jinja2.PackageLoader("hipeq.interfaces", "templates"),
+                             autoescape=jinja2.select_autoescape(["html", "j2"]), undefined=jinja2.StrictUndefined)
+    env.filters["mark_class"] = _mark_class
+    view = {"title": section.title, "columns": section.columns, "rows": section.rows, "notes": section.notes,
+            "embedded": _embedded(section.figures)}
+    text = env.get_template(TEMPLATE).render(
+        title=title, version=__version__, generated=_dt.datetime.now().strftime("%Y-%m-%d %H:%M"),
+        case_file="(data sets)", standard_state=STANDARD_STATE, notes="", species=[], reactions=[], model="several",
+        caution=CAUTION.removeprefix("Caution: "), failed=section.failed, sections=[view], legend=LEGEND,
+        data_sources={}, k_source="per model (see the scores)")
+    target = Path(path)
+    target.write_text(text, encoding="utf-8")
+    return target

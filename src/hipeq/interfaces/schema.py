@@ -57,6 +57,7 @@ KIND_HELP = {
     "species": "a species name of [mixture] species",
     "species-list": "a list of species names",
     "reaction-list": 'a list of reactions, e.g. ["N2 + 3 H2 = 2 NH3"]',
+    "text-list": "a list of strings",
     "quantity": 'a number and its unit in one string, e.g. "450 degC"',
     "quantity-list": 'a list of quantities, e.g. ["380 degC", "420 degC"]',
     "axis": f'[start, stop, count] (count 1..{MAX_AXIS}, evenly spaced) or a list of quantities',
@@ -151,6 +152,15 @@ TABLES: tuple[Table, ...] = (
             '"exchanger"', choices=("exchanger", "quench")),
         Key("quench_temperature", "quantity", "temperature of the cold feed mixed in (cooling = \"quench\")",
             '"150 degC"', dimension="temperature"),
+    )),
+    Table("scoring", "Score models against measured equilibria (bundled data sets or your own CSV files, layout "
+          "in docs/scoring.md). A case file may hold only [case] and [scoring]; run it with `hipeq score`.", (
+        Key("data", "text-list", "bundled data-set names (`hipeq score --list`) or CSV file paths (relative to the "
+            "case file)", '["ammonia-larson-1924"]', required=True),
+        Key("models", "models", "models to score; options such as K_source by a (label, options) pair are for the "
+            "Python API", '["ideal", "PR", "SRK"]'),
+        Key("bands", "quantity-list", "upper edges of the pressure bands of the statistics", '["100 bar", "300 bar"]',
+            dimension="pressure"),
     )),
     Table("separator", "A vapour-liquid flash (no reaction) of the equilibrium gas, cooled to separator "
           "conditions.", (
