@@ -170,3 +170,15 @@ def test_score_lists_scores_and_names_bad_data(tmp_path):
     bad.write_text(text.replace("P [MPa]", "P [MPag]", 1))
     refused = hipeq("score", str(bad), "--models", "PR")
     assert refused.returncode == 2 and "mine.csv" in refused.stderr and "Traceback" not in refused.stderr
+
+
+def test_a_failed_compared_model_is_marked_and_sets_the_exit_code(tmp_path):
+    """The truncated virial at 3000 bar has no physical state (status 3): no numbers, FAILED, exit code 1."""
+    text = BASE.replace('pressure = "300 bar"', 'pressure = "3000 bar"') + \
+        '[compare]\nmodels = ["ideal", "virial", "PR"]\n'
+    done = hipeq("compare", str(case(tmp_path, text)))
+    assert done.returncode == 1, done.stderr
+    row = next(line for line in done.stdout.splitlines() if line.strip().startswith("virial"))
+    assert "FAILED" in row and "0." not in row.split("FAILED")[0]
+    assert "did not converge" in done.stdout or "FAILED" in done.stdout
+    assert "thermodynamic limit, not a design basis" in done.stdout
