@@ -192,7 +192,10 @@ def test_dask_run_equals_local_run(system) -> None:
 
 @pytest.mark.slow
 def test_dask_process_workers_equal_local_run(system) -> None:
-    """Worker processes unpickle the systems and load the compiled core themselves (slow to start)."""
+    """Worker processes unpickle the systems and load the compiled core themselves (slow to start). Bitwise equal
+    when both sides run the same compiled code (the usual case: one compile cache); a process that compiled the
+    core itself on an empty cache was seen to differ from one that loaded it by 1.3e-15 in y, so the comparison
+    across processes allows 1e-13 and exact equality is asserted for in-process workers above."""
     from dask.distributed import Client, LocalCluster
 
     grid = dict(T=Span("350 degC", "550 degC", 4), P=Span("10 bar", "500 bar", 4, "geometric"), chunk_states=6)
@@ -200,7 +203,9 @@ def test_dask_process_workers_equal_local_run(system) -> None:
     with LocalCluster(n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None) as cluster, \
             Client(cluster) as client:
         remote = operating_map(system, FEED, **grid, client=client, progress=False)
-    _assert_same(local, remote)
+    for label in local.models:
+        np.testing.assert_array_equal(local.status[label], remote.status[label])
+        np.testing.assert_allclose(remote.y[label], local.y[label], rtol=0, atol=1e-13)
 
 
 # -- figures and tables --------------------------------------------------------------------------------------

@@ -256,7 +256,7 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
     ``trials[k]`` gets the trial composition of lowest tpd met (the tested composition itself when no trial
     went below it), ``floats[k]`` = (tpd, Z of that trial, Z of the tested phase) and ``ints[k]`` = (status,
     trial kind or TRIAL_NONE, iterations, root of the trial, root of the tested phase). With ``screen`` a cubic
-    state whose present components all lie above their (k_ij-widened) critical bound (``_one_root_everywhere``)
+    state whose present components all lie above their (k_ij-widened) critical bound (``one_root_everywhere``)
     is not tested (status STABILITY_SCREENED). Serial; allocates its work buffers once."""
     n, nc = Z.shape
     aij = np.empty((nc, nc))
@@ -311,7 +311,7 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
                 d[i] = 0.0
         if n_present < 2:
             continue  # one component: no other composition to split into
-        if screen and code == MODEL_CUBIC and _one_root_everywhere(T_k, aij, bi, consts, present):
+        if screen and code == MODEL_CUBIC and one_root_everywhere(T_k, aij, bi, consts, present):
             ints[k, I_STATUS] = STABILITY_SCREENED
             continue
         best[0] = 0.0
@@ -346,7 +346,7 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
 
 
 @kernel
-def _one_root_everywhere(T, aij, bi, consts, present):
+def one_root_everywhere(T, aij, bi, consts, present):
     """True when the one-fluid cubic has a single volume root at every composition of the present components:
     a/(b R T) <= c max_i a_i/(b_i R T) < Omega_a/Omega_b with c = max(1, max_ij a_ij/sqrt(a_i a_j)) (the first
     stage of ``hipeq.solvers._driver.several_roots_possible``; Michelsen & Mollerup 2007, ch. 3). Such a mixture

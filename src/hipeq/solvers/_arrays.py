@@ -96,8 +96,10 @@ class AnswerLayout(NamedTuple):
 
 
 # integer answer row of one state
-STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID = range(7)
-INT_COLUMNS = 7
+# MAY_SPLIT: 1 where a cubic could have several volume roots at T for some composition of the species present
+# (a vapour-liquid split is possible: ``phases="auto"`` tests the answer's stability there and nowhere else)
+STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT = range(8)
+INT_COLUMNS = 8
 
 
 @inline_kernel

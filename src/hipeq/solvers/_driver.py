@@ -29,7 +29,7 @@ the vessel at that density.
 A converged answer is checked before it is reported: every element balance closed (``element_residuals``), every
 output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
 Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
-allocated once per chunk (``make_work``); answers are written as one packed float row and one integer row per
+allocated once per chunk (``make_work_buffers``); answers are written as one packed float row and one integer row per
 state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
 """
 from __future__ import annotations
@@ -44,15 +44,17 @@ import numpy as np
 from hipeq._jit import inline_kernel, kernel, threaded_entry
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
+from hipeq.models._stability import one_root_everywhere
 from hipeq.models.inputs import P_MAX
-from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, METHOD, METHOD_EXTENT, METHOD_GIBBS, OUTER,
+from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, MAY_SPLIT, METHOD, METHOD_EXTENT, METHOD_GIBBS,
+                                   OUTER,
                                    REASON, ROOT, STATUS, Options, PatternArrays, SystemArrays, answer_layout)
 from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, INVALID_INPUT, MAX_VERTICES, NO_PHYSICAL_STATE,
                                    OUTSIDE_MODEL_RANGE, PRESSURE_NOT_FOUND, REASON_ABOVE_CEILING,
                                    REASON_BELOW_COVOLUME, REASON_BELOW_FLOOR, REASON_ELEMENTS,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
                                    REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, SINGULAR, STALLED, adjust_g0,
-                                   element_residuals, g0_into, lu_solve, make_work)
+                                   element_residuals, g0_into, lu_solve, make_work_buffers, work_views)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
@@ -584,6 +586,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                 recorded = True
     ints[ITERATIONS] = total_iterations
     ints[OUTER] = total_outer
+    ints[MAY_SPLIT] = 0 if code != MODEL_CUBIC or one_root_everywhere(T, w.a_ij, w.b_i, consts, active) else 1
     _check_answer(row, ints, layout, code, n0, A, fixed_volume)
     if ints[STATUS] != CONVERGED or ints[METHOD] != opts.method:
         return False
@@ -611,9 +614,7 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     nc = n0.shape[0]
     nr = system.nu.shape[0]
     k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
-    work, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
-    work.model_scratch[2, 0] = 0.0  # no cubic root carried over from this thread's previous call: as if alone
-    work.vertex_info[1] = 0  # nor polytope vertices (they belong to one system's patterns)
+    fbuf, ibuf, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
     one_T[0] = T
     one_PV[0] = PV
     one_n0[0] = n0
@@ -625,7 +626,7 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
     _solve_chunk(system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, rows, ints_one,
-                 work)
+                 fbuf, ibuf, k)
 
 
 _scalar = threading.local()
@@ -640,19 +641,24 @@ def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
         cache = _scalar.buffers = {}
     found = cache.get((nc, nr, k))
     if found is None:
-        found = (make_work(nc, nr, k), np.empty(1), np.empty(1), np.empty((1, nc)), np.empty(1, dtype=np.int64),
+        found = (*make_work_buffers(nc, nr, k), np.empty(1), np.empty(1), np.empty((1, nc)), np.empty(1, dtype=np.int64),
                  np.ones(1, dtype=np.uint8), np.empty((0, nr)), np.empty((0, 0)))
         cache[(nc, nr, k)] = found
     return found
 
 
 @kernel
-def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
+def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, fbuf, ibuf, ne):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers, each warm-started from the previous converged one of the same pattern where that is safe (see the
+    buffers (the :class:`~hipeq.solvers._common.Work` views of ``fbuf`` and ``ibuf``, sized for ``ne`` element
+    rows), each warm-started from the previous converged one of the same pattern where that is safe (see the
     module docstring); the answers go to ``rows`` and ``ints``. ``ln_k_user`` and ``guesses`` (the caller's
-    start, used when ``opts.guess``) have one row per state or none."""
+    start, used when ``opts.guess``) have one row per state or none. The chunk starts as if alone: no cubic root
+    and no feed polytope carried over from what the buffers held before."""
     nc = N0.shape[1]
+    work = work_views(fbuf, ibuf, nc, system.nu.shape[0], ne)
+    work.model_scratch[2, 0] = 0.0
+    work.vertex_info[1] = 0
     layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
     empty = T[0:0]
     last_T = -1.0
@@ -744,7 +750,8 @@ def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chu
     for c in range(first_chunk, last_chunk):
         first = c * chunk
         m = min(n, first + chunk) - first
-        work = make_work(nc, nr, max(system.elements.shape[0], patterns.gibbs_rows.shape[1]))
+        ne = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
+        fbuf, ibuf = make_work_buffers(nc, nr, ne)
         # the chunk's states gathered into solving order, and its answers scattered back at the end: the
         # solve itself then reads and writes memory in sequence
         Tl = np.empty(m)
@@ -756,7 +763,7 @@ def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chu
         rows = np.empty((m, width))
         ints = np.empty((m, INT_COLUMNS), dtype=np.int64)
         _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, work)
+        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, fbuf, ibuf, ne)
         _scatter(order[first:first + m], rows, ints, out, out_ints)
 
 

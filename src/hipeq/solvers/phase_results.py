@@ -185,10 +185,15 @@ def split_unstable(system: Any, result: Any) -> Any:
 
     if result.fixed_volume or system.model.code != K.MODEL_CUBIC:
         return result
+    may_split = result._may_split  # the solver's screen: several volume roots possible at T (one flag per state)
+    if may_split is False:
+        return result
     status = np.asarray(result.status)
     n_states = int(status.size)
     nc = len(system.species_names)
     ok = status.reshape(n_states) == 0
+    if may_split is not None and may_split is not True:
+        ok &= np.asarray(may_split).reshape(n_states)
     if not np.any(ok):
         return result
     T = np.broadcast_to(np.asarray(result.T, dtype=float), status.shape).reshape(n_states)

@@ -495,6 +495,8 @@ class EquilibriumResult(_Common):
     fixed_volume: bool
     frozen_reactions: tuple[str, ...]
     _info: _SystemInfo = field(repr=False)
+    # not a dataclass field (subclasses add fields without defaults): set by scalar_result; True = not screened
+    _may_split = True  # a vapour-liquid split is possible at T (the solver's screen)
 
     @property
     def converged(self) -> bool:
@@ -562,6 +564,7 @@ class BatchResult(_Common):
     fixed_volume: bool
     _invalid_reasons: Mapping[int, str]
     _info: _SystemInfo = field(repr=False)
+    _may_split = None  # per state, as on EquilibriumResult (set by batch_result; None = not screened)
 
     def __post_init__(self) -> None:
         for value in vars(self).values():
@@ -632,7 +635,7 @@ def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndar
     nc, nr, ne = len(info.species), len(info.reactions), len(info.elements)
     row.flags.writeable = False
     n0.flags.writeable = False
-    status, iterations, outer, root, reason, method, liquid = ints.tolist()
+    status, iterations, outer, root, reason, method, liquid, may_split = ints.tolist()
     result = object.__new__(EquilibriumResult)
     result.__dict__.update(
         T=T, P=float(row[layout.P]), V=float(row[layout.V]), Z=float(row[layout.Z]), G_RT=float(row[layout.G]),
@@ -642,7 +645,8 @@ def scalar_result(info: _SystemInfo, layout: Any, row: np.ndarray, ints: np.ndar
         _element_res=row[layout.element_residuals:layout.element_residuals + ne], iterations=iterations,
         outer_iterations=outer, status=_STATUSES[status], reason=reason, method=METHOD_NAMES[method],
         method_requested=method_requested, scheme=scheme, root=ROOT_NAMES.get(root, "none"),
-        liquid_like=bool(liquid), fixed_volume=fixed_volume, frozen_reactions=frozen, _info=info)
+        liquid_like=bool(liquid), fixed_volume=fixed_volume, frozen_reactions=frozen, _info=info,
+        _may_split=bool(may_split))
     return result
 
 
@@ -655,7 +659,8 @@ def _unstable_caution(result: Any, flat: int | None) -> str:
 
 
 _STATUSES = tuple(Status)
-assert (A.STATUS, A.ITERATIONS, A.OUTER, A.ROOT, A.REASON, A.METHOD, A.LIQUID) == tuple(range(A.INT_COLUMNS)), \
+assert (A.STATUS, A.ITERATIONS, A.OUTER, A.ROOT, A.REASON, A.METHOD, A.LIQUID,
+        A.MAY_SPLIT) == tuple(range(A.INT_COLUMNS)), \
     "scalar_result unpacks the integer answer row in this order"
 
 
@@ -674,10 +679,14 @@ def batch_result(info: _SystemInfo, layout: Any, rows: np.ndarray, ints: np.ndar
     def integers(j: int) -> np.ndarray:
         return ints[:, j].reshape(shape)
 
-    return BatchResult(
+    result = BatchResult(
         shape, T.reshape(shape), column(layout.P), column(layout.V), column(layout.Z), column(layout.G),
         columns(layout.amounts, nc), columns(layout.y, nc), N0.reshape(shape + (nc,)), columns(layout.ln_phis, nc),
         columns(layout.extents, nr), columns(layout.ln_k, nr), columns(layout.residuals, nr),
         columns(layout.element_residuals, ne), integers(A.ITERATIONS), integers(A.OUTER), integers(A.STATUS),
         integers(A.REASON), integers(A.METHOD), method_requested, scheme, integers(A.ROOT),
         integers(A.LIQUID).astype(bool), fixed_volume, invalid_reasons, info)
+    may_split = integers(A.MAY_SPLIT).astype(bool)
+    may_split.flags.writeable = False
+    object.__setattr__(result, "_may_split", may_split)
+    return result
