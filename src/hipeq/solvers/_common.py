@@ -62,7 +62,7 @@ LOG_TINY = math.log(TINY)
 # work buffers of a chunk of states: one named tuple (numba passes it as one argument), one array per role
 # ---------------------------------------------------------------------------------------------------------
 class Work(NamedTuple):
-    """Work buffers of one chunk of states, allocated once per chunk as two flat buffers (:func:`make_work_buffers`, viewed by :func:`work_views`; nc species, k =
+    """Work buffers of one chunk of states, allocated once per chunk as :class:`WorkBuffers` (:func:`make_work`, viewed by :func:`work_views`; nc species, k =
     max(n_reactions, n_element_rows, 1), big = nc + ne + 1). Kept between states of a chunk: ``n_prev``,
     ``n0_prev``, ``g0_prev``, ``extents_prev``, ``ln_p_prev`` (the last converged state, for warm starts),
     ``model_scratch[2, 0]`` (the last cubic root, the start of the next) and ``vertices``/``vertex_info`` (the
@@ -121,13 +121,25 @@ class Work(NamedTuple):
     vertex_info: np.ndarray    # (3,) int64: count, valid, pattern
 
 
-@inline_kernel
-def work_sizes(nc, nr, ne):
-    """(floats, ints): the lengths of the two flat buffers that hold a :class:`Work` (see :func:`work_views`)."""
-    k = max(nr, ne, 1)
-    big = nc + ne + 1
-    floats = 16 * nc + 3 * nc + 4 * nc * nc + 13 * k + 4 * k * k + big * big + 2 * big + (MAX_VERTICES + 1) * nc
-    return floats, 2 * big + 3
+class WorkBuffers(NamedTuple):
+    """The work buffers of a chunk as they travel between compiled functions: ``vectors`` (one flat float64
+    array holding every per-species and per-reaction vector), ``scratch`` (3, nc), ``pairs`` (4, nc, nc),
+    ``small`` (4, k, k), ``kkt`` (big, big), ``vertices`` (MAX_VERTICES + 1, nc), ``ints`` (int64) and the sizes
+    they were made for. Each kernel that needs them views them as a :class:`Work` (``w = work_views(wb)``,
+    inlined: slicing only, which the compiler drops for the views a kernel does not use). Handing the forty-five
+    arrays of a Work from call to call instead cost a fifth of the batch speed (each array is about nine machine
+    words of arguments)."""
+
+    vectors: np.ndarray
+    scratch: np.ndarray
+    pairs: np.ndarray
+    small: np.ndarray
+    kkt: np.ndarray
+    vertices: np.ndarray
+    ints: np.ndarray
+    nc: int
+    k: int
+    big: int
 
 
 @inline_kernel
@@ -137,82 +149,68 @@ def _take(buf, start, count):
 
 
 @inline_kernel
-def work_views(fbuf, ibuf, nc, nr, ne):
-    """A :class:`Work` whose arrays are views of two flat buffers (float64 ``fbuf``, int64 ``ibuf``, lengths from
-    :func:`work_sizes`): the scalar path hands the compiled solver two arrays instead of forty-five (the
-    dispatcher types every array argument on every call)."""
-    k = max(nr, ne, 1)
-    big = nc + ne + 1
+def work_views(wb):
+    """The :class:`Work` view of :class:`WorkBuffers` ``wb`` (slices and sub-arrays, no copies)."""
+    nc, k, big = wb.nc, wb.k, wb.big
+    f = wb.vectors
     a = 0
-    n, a = _take(fbuf, a, nc)
-    n_try, a = _take(fbuf, a, nc)
-    y, a = _take(fbuf, a, nc)
-    y_try, a = _take(fbuf, a, nc)
-    ln_phi, a = _take(fbuf, a, nc)
-    ln_phi_try, a = _take(fbuf, a, nc)
-    mu, a = _take(fbuf, a, nc)
-    mu_try, a = _take(fbuf, a, nc)
-    dn, a = _take(fbuf, a, nc)
-    species_residuals, a = _take(fbuf, a, nc)
-    g0, a = _take(fbuf, a, nc)
-    n_prev, a = _take(fbuf, a, nc)
-    n0_prev, a = _take(fbuf, a, nc)
-    g0_prev, a = _take(fbuf, a, nc)
-    b_i, a = _take(fbuf, a, nc)
-    db_i_dT, a = _take(fbuf, a, nc)
-    model_scratch, a = _take(fbuf, a, 3 * nc)
-    jac, a = _take(fbuf, a, nc * nc)
-    jac_try, a = _take(fbuf, a, nc * nc)
-    a_ij, a = _take(fbuf, a, nc * nc)
-    da_ij_dT, a = _take(fbuf, a, nc * nc)
-    grad, a = _take(fbuf, a, k)
-    rhs, a = _take(fbuf, a, k)
-    step, a = _take(fbuf, a, k)
-    scale, a = _take(fbuf, a, k)
-    potentials, a = _take(fbuf, a, k)
-    element_totals, a = _take(fbuf, a, k)
-    element_balance, a = _take(fbuf, a, k)
-    element_scale, a = _take(fbuf, a, k)
-    extents, a = _take(fbuf, a, k)
-    ln_k, a = _take(fbuf, a, k)
-    extents_prev, a = _take(fbuf, a, k)
-    extents_start, a = _take(fbuf, a, k)
-    ln_p_prev, a = _take(fbuf, a, k)
-    hessian, a = _take(fbuf, a, k * k)
-    factor, a = _take(fbuf, a, k * k)
-    reduced_jac, a = _take(fbuf, a, k * k)
-    reduced_jac_try, a = _take(fbuf, a, k * k)
-    kkt, a = _take(fbuf, a, big * big)
-    kkt_rhs, a = _take(fbuf, a, big)
-    kkt_solution, a = _take(fbuf, a, big)
-    vertices, a = _take(fbuf, a, (MAX_VERTICES + 1) * nc)
+    n, a = _take(f, a, nc)
+    n_try, a = _take(f, a, nc)
+    y, a = _take(f, a, nc)
+    y_try, a = _take(f, a, nc)
+    ln_phi, a = _take(f, a, nc)
+    ln_phi_try, a = _take(f, a, nc)
+    mu, a = _take(f, a, nc)
+    mu_try, a = _take(f, a, nc)
+    dn, a = _take(f, a, nc)
+    species_residuals, a = _take(f, a, nc)
+    g0, a = _take(f, a, nc)
+    n_prev, a = _take(f, a, nc)
+    n0_prev, a = _take(f, a, nc)
+    g0_prev, a = _take(f, a, nc)
+    b_i, a = _take(f, a, nc)
+    db_i_dT, a = _take(f, a, nc)
+    grad, a = _take(f, a, k)
+    rhs, a = _take(f, a, k)
+    step, a = _take(f, a, k)
+    scale, a = _take(f, a, k)
+    potentials, a = _take(f, a, k)
+    element_totals, a = _take(f, a, k)
+    element_balance, a = _take(f, a, k)
+    element_scale, a = _take(f, a, k)
+    extents, a = _take(f, a, k)
+    ln_k, a = _take(f, a, k)
+    extents_prev, a = _take(f, a, k)
+    extents_start, a = _take(f, a, k)
+    ln_p_prev, a = _take(f, a, 1)
+    kkt_rhs, a = _take(f, a, big)
+    kkt_solution, a = _take(f, a, big)
     b = 0
-    kkt_index, b = _take(ibuf, b, big)
-    pivots, b = _take(ibuf, b, big)
-    vertex_info, b = _take(ibuf, b, 3)
+    kkt_index, b = _take(wb.ints, b, big)
+    pivots, b = _take(wb.ints, b, big)
+    vertex_info, b = _take(wb.ints, b, 3)
     return Work(n, n_try, y, y_try, ln_phi, ln_phi_try, mu, mu_try, dn, species_residuals, g0, n_prev, n0_prev,
-                g0_prev, b_i, db_i_dT, model_scratch.reshape((3, nc)), jac.reshape((nc, nc)),
-                jac_try.reshape((nc, nc)), a_ij.reshape((nc, nc)), da_ij_dT.reshape((nc, nc)), grad, rhs, step,
-                scale, potentials, element_totals, element_balance, element_scale, extents, ln_k, extents_prev,
-                extents_start, ln_p_prev, hessian.reshape((k, k)), factor.reshape((k, k)),
-                reduced_jac.reshape((k, k)), reduced_jac_try.reshape((k, k)), kkt.reshape((big, big)), kkt_rhs,
-                kkt_solution, kkt_index, pivots, vertices.reshape((MAX_VERTICES + 1, nc)), vertex_info)
-
-
-@entry
-def make_work_buffers(nc, nr, ne):
-    """Zeroed flat buffers (float64, int64) for one :class:`Work` (see :func:`work_views`)."""
-    floats, ints = work_sizes(nc, nr, ne)
-    return np.zeros(floats), np.zeros(ints, dtype=np.int64)
+                g0_prev, b_i, db_i_dT, wb.scratch, wb.pairs[0], wb.pairs[1], wb.pairs[2], wb.pairs[3], grad, rhs,
+                step, scale, potentials, element_totals, element_balance, element_scale, extents, ln_k,
+                extents_prev, extents_start, ln_p_prev, wb.small[0], wb.small[1], wb.small[2], wb.small[3], wb.kkt,
+                kkt_rhs, kkt_solution, kkt_index, pivots, wb.vertices, vertex_info)
 
 
 @entry
 def make_work(nc, nr, ne):
-    """New zeroed :class:`Work` buffers for systems of nc species, nr reactions and ne element rows, for Python
-    callers (tests, tools): views of two flat buffers, built with numba's runtime so that the views returned to
-    Python keep their buffers alive (``work_views`` is inlined into each caller and compiled in its context)."""
-    floats, ints = work_sizes(nc, nr, ne)
-    return work_views(np.zeros(floats), np.zeros(ints, dtype=np.int64), nc, nr, ne)
+    """New zeroed :class:`WorkBuffers` for systems of nc species, nr reactions and ne element rows."""
+    k = max(nr, ne, 1)
+    big = nc + ne + 1
+    return WorkBuffers(np.zeros(16 * nc + 12 * k + 1 + 2 * big), np.zeros((3, nc)), np.zeros((4, nc, nc)),
+                       np.zeros((4, k, k)), np.zeros((big, big)), np.zeros((MAX_VERTICES + 1, nc)),
+                       np.zeros(2 * big + 3, dtype=np.int64), nc, k, big)
+
+
+@entry
+def python_views(wb):
+    """The :class:`Work` view of ``wb`` for Python callers (tests, tools), built with numba's runtime so that the
+    views returned to Python keep their buffers alive."""
+    return work_views(wb)
 
 
 # ---------------------------------------------------------------------------------------------------------

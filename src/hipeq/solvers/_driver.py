@@ -29,7 +29,7 @@ the vessel at that density.
 A converged answer is checked before it is reported: every element balance closed (``element_residuals``), every
 output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
 Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
-allocated once per chunk (``make_work_buffers``); answers are written as one packed float row and one integer row per
+allocated once per chunk (``make_work``, a ``WorkBuffers``); answers are written as one packed float row and one integer row per
 state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
 """
 from __future__ import annotations
@@ -44,7 +44,6 @@ import numpy as np
 from hipeq._jit import inline_kernel, kernel, threaded_entry
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
-from hipeq.models._stability import one_root_everywhere
 from hipeq.models.inputs import P_MAX
 from hipeq.solvers._arrays import (INT_COLUMNS, ITERATIONS, LIQUID, MAY_SPLIT, METHOD, METHOD_EXTENT, METHOD_GIBBS,
                                    OUTER,
@@ -54,7 +53,7 @@ from hipeq.solvers._common import (BALANCE_NOT_CLOSED, CONVERGED, INVALID_INPUT,
                                    REASON_BELOW_COVOLUME, REASON_BELOW_FLOOR, REASON_ELEMENTS,
                                    REASON_LEWIS_RANDALL_RANGE, REASON_NONE, REASON_NOT_FINITE,
                                    REASON_NOT_ONE_PHASE, REASON_VIRIAL_RANGE, SINGULAR, STALLED, adjust_g0,
-                                   element_residuals, g0_into, lu_solve, make_work_buffers, work_views)
+                                   element_residuals, g0_into, lu_solve, make_work, work_views)
 from hipeq.solvers._extent import extent_solve, predict_start
 from hipeq.solvers._gibbs import gibbs_solve
 
@@ -69,6 +68,8 @@ MAX_PRESSURE_STEPS = 80
 # Lewis-Randall rule up to 2e8 Pa, twice the 1000 atm to which docs/ammonia_validation.md checks it.
 VIRIAL_MAX_DEPARTURE = 0.5
 LEWIS_RANDALL_P_MAX = 2e8  # [Pa]
+# what the cubic's volume roots allow at a state's temperature (several_roots_possible)
+ONE_ROOT, CONDENSABLE, SEVERAL_ROOTS = 0, 1, 2
 # deterministic cold starts n0 + eps (p - f): eps as fractions of the largest step that keeps n >= 0
 COLD_FRACTIONS = (0.5, 0.02, 0.98)
 START_GUESS = 0
@@ -77,10 +78,12 @@ START_COLD = 2
 
 
 @kernel
-def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, w):
-    """True when the cubic could have three volume roots at T [K] for some composition the feed ``n0`` can reach
-    (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the active
-    species).
+def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, wb):
+    """SEVERAL_ROOTS when the cubic could have three volume roots at T [K] for some composition the feed ``n0``
+    can reach (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the
+    active species); else CONDENSABLE when some active species is below its (k_ij-widened) critical temperature
+    (three roots at some composition of the active species, so a vapour-liquid split is possible), else ONE_ROOT
+    (one volume root at every composition: no split; the ``phases="auto"`` screen).
 
     With the one-fluid rule, a = sum_ij y_i y_j a_ij <= c (sum_i y_i sqrt(a_i))^2 <= c b sum_i y_i a_i / b_i
     (Cauchy-Schwarz twice; c = max(1, max_ij a_ij / sqrt(a_i a_j)) covers negative k_ij), and the isotherm of a
@@ -91,10 +94,11 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
     once per feed and pattern and kept in ``w.vertices`` / ``w.vertex_info`` (row 0 of the vertices the feed;
     vertex_info = count, valid, pattern), so a chunk
     of states with one feed pays the enumeration once. Past MAX_VERTICES candidate sets the answer is True (the
-    safe side). Always False for the other models (one root per state). The Gibbs Newton buffers of ``w``
+    safe side). Always ONE_ROOT for the other models (one root per state). The Gibbs Newton buffers of ``w``
     serve as scratch."""
+    w = work_views(wb)
     if code != MODEL_CUBIC:
-        return False
+        return ONE_ROOT
     nc = bi.shape[0]
     limit = consts[OMEGA_A] / consts[OMEGA_B]
     c = 1.0
@@ -111,9 +115,11 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
             top = max(top, weight)
             feed += n0[i] * weight
     if top < 0.0:
-        return False  # no active species is below its (kij-widened) critical temperature
-    if feed >= 0.0 or n_null == 0:
-        return feed >= 0.0
+        return ONE_ROOT  # no active species is below its (kij-widened) critical temperature
+    if feed >= 0.0:
+        return SEVERAL_ROOTS
+    if n_null == 0:
+        return CONDENSABLE
     VX, VI = w.vertices, w.vertex_info
     same = VI[1] == 1 and VI[2] == pat
     if same:
@@ -121,8 +127,8 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
             if VX[0, i] != n0[i]:
                 same = False
                 break
-    if not same and not _polytope_vertices(active, n0, null, n_null, w):
-        return True  # too many candidate vertices to enumerate: the safe side
+    if not same and not _polytope_vertices(active, n0, null, n_null, wb):
+        return SEVERAL_ROOTS  # too many candidate vertices to enumerate: the safe side
     VI[2] = pat
     for v in range(1, VI[0] + 1):
         value = 0.0
@@ -130,16 +136,17 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
             if active[i] and bi[i] > 0.0:
                 value += VX[v, i] * (c * aij[i, i] / (bi[i] * R * T) - limit)
         if value >= 0.0:
-            return True
-    return False
+            return SEVERAL_ROOTS
+    return CONDENSABLE
 
 
 @kernel
-def _polytope_vertices(active, n0, null, n_null, w):
+def _polytope_vertices(active, n0, null, n_null, wb):
     """The vertices of {n = n0 + null t >= 0} (every set of n_null active species at zero whose solution is
     feasible) into vertices[1:], the feed into vertices[0], their count into vertex_info[0] and vertex_info[1] = 1;
     False (vertex_info[1] = 0) when
     there are more candidate sets than MAX_VERTICES."""
+    w = work_views(wb)
     nc = n0.shape[0]
     VX, VI = w.vertices, w.vertex_info
     M, rhs, x, idx, piv = w.kkt, w.kkt_rhs, w.kkt_solution, w.kkt_index, w.pivots
@@ -202,9 +209,10 @@ def _polytope_vertices(active, n0, null, n_null, w):
 
 
 @kernel
-def _cold_start(n0, active, direction, xdir, nr, fraction, w):
+def _cold_start(n0, active, direction, xdir, nr, fraction, wb):
     """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps ``fraction`` of the largest step keeping
     n >= 0 (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
+    w = work_views(wb)
     nc = n0.shape[0]
     eps = np.inf
     for i in range(nc):
@@ -223,8 +231,9 @@ def _cold_start(n0, active, direction, xdir, nr, fraction, w):
 
 
 @kernel
-def _start_from_extents(n0, nu, active, w):
+def _start_from_extents(n0, nu, active, wb):
     """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
+    w = work_views(wb)
     nc = n0.shape[0]
     nr = nu.shape[0]
     total = 0.0
@@ -242,18 +251,20 @@ def _start_from_extents(n0, nu, active, w):
 
 @inline_kernel
 def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
-                       max_iter, w):
+                       max_iter, wb):
+    w = work_views(wb)
     ln_p = math.log(P) - LN_P_STANDARD
     if method == METHOD_EXTENT:
         return extent_solve(code, T, P, ln_p, w.g0, W, Zb, neff, active, w.extents, w.a_ij, w.b_i, consts,
-                            coupled, tol, max_iter, w)
+                            coupled, tol, max_iter, wb)
     return gibbs_solve(code, T, P, ln_p, n0, w.g0, Q, neq, Nb, n_null, active, w.a_ij, w.b_i, consts,
-                       coupled, tol_g, max_iter, w)
+                       coupled, tol_g, max_iter, wb)
 
 
 @kernel
-def _boundary_reason(code, at_ceiling, V, n_t, w):
+def _boundary_reason(code, at_ceiling, V, n_t, wb):
     """Why a sealed-vessel search ended at a pressure limit."""
+    w = work_views(wb)
     if not at_ceiling:
         return REASON_BELOW_FLOOR
     if code == MODEL_CUBIC:
@@ -267,9 +278,10 @@ def _boundary_reason(code, at_ceiling, V, n_t, w):
 
 @kernel
 def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
-                     tol, tol_g, tol_v, max_iter, w):
+                     tol, tol_g, tol_v, max_iter, wb):
     """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
     (status, reason, iterations, outer, n_T, Z, root, P)."""
+    w = work_views(wb)
     nc = n0.shape[0]
     nr = w.extents.shape[0]
     s_floor = math.log(P_FLOOR)
@@ -300,7 +312,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     for k in range(MAX_PRESSURE_STEPS):
         P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
         status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
-                                                         active, consts, coupled, tol, tol_g, max_iter, w)
+                                                         active, consts, coupled, tol, tol_g, max_iter, wb)
         total += it
         if status == NO_PHYSICAL_STATE:
             # no state of the model at this pressure: treat it as "too high" and step back
@@ -345,7 +357,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
             s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
         if s_new >= s_ceiling:
             if s >= s_ceiling:  # already at the ceiling and still too large a volume
-                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, w), total, k + 1, n_t, z, root,
+                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, wb), total, k + 1, n_t, z, root,
                         P)
             s_new = s_ceiling
         elif s_new <= s_floor:
@@ -362,8 +374,9 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
 
 @inline_kernel
 def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
-            T, w):
+            T, wb):
     """Write the current iterate (rows F_N, F_LNPHI, F_MU, S_XI of the work buffers) as the answer of a state."""
+    w = work_views(wb)
     nc = n0.shape[0]
     nr = nu.shape[0]
     total = 0.0
@@ -444,11 +457,12 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
 @inline_kernel
 def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T, warm, work, row, ints):
     """Solve one state; writes its float answer row ``row`` (``answer_layout``) and integer row ``ints``
-    (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID). ``new_T``: recompute the temperature-dependent
-    parameters; ``warm``: the work buffers hold a converged previous state of the same pattern (rows F_N_PREV,
-    F_N0_PREV, S_XI_PREV). Returns True when the answer can warm-start the next state. Compiled into its callers
+    (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT). ``new_T``: recompute the
+    temperature-dependent parameters; ``warm``: the work buffers (``work``, a WorkBuffers) hold a converged
+    previous state of the same pattern (``n_prev``, ``n0_prev``, ``extents_prev``). Returns True when the answer can warm-start the next state. Compiled into its callers
     (one call site each)."""
-    w = work
+    wb = work
+    w = work_views(wb)
     nc = n0.shape[0]
     nu = system.nu
     nr = nu.shape[0]
@@ -476,8 +490,9 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     n_feed = 0.0
     for i in range(nc):
         n_feed += n0[i]
-    ambiguous = several_roots_possible(code, T, w.a_ij, w.b_i, consts, patterns.gibbs_active[pat], n0,
-                                       patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, w)
+    roots = several_roots_possible(code, T, w.a_ij, w.b_i, consts, patterns.gibbs_active[pat], n0,
+                                   patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, wb)
+    ambiguous = roots == SEVERAL_ROOTS
     fixed_volume = opts.fixed_volume
     recorded = False
     total_iterations = 0
@@ -513,7 +528,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                 if method == METHOD_EXTENT:
                     for r in range(nr):
                         w.extents[r] = guess[r]
-                    started = _start_from_extents(n0, nu, active, w)
+                    started = _start_from_extents(n0, nu, active, wb)
                 else:
                     started = True
                     for i in range(nc):
@@ -539,7 +554,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                 elif method == METHOD_EXTENT:
                     for r in range(nr):
                         w.extents[r] = w.extents_prev[r] * n_feed / prev_total
-                    started = _start_from_extents(n0, nu, active, w)
+                    started = _start_from_extents(n0, nu, active, wb)
                 else:
                     started = True
                     for i in range(nc):
@@ -547,7 +562,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                         w.n[i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
             if not started:
                 fraction = COLD_FRACTIONS[k - first_cold] if k >= first_cold else COLD_FRACTIONS[0]
-                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, w)
+                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, wb)
             # ---- solve
             reason = REASON_NONE
             P = PV
@@ -556,13 +571,13 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                     method, code, T, PV, n_feed * R * T / PV, n0, patterns.extent_directions[pat],
                     patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
                     patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts,
-                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, w)
+                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, wb)
             else:
                 status, iters, outer, n_t, z, root = _solve_at_pressure(
                     method, code, T, P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
                     patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
                     patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled, opts.tol,
-                    opts.tol_gibbs, opts.max_iterations, w)
+                    opts.tol_gibbs, opts.max_iterations, wb)
             total_iterations += iters
             total_outer += outer
             V = n_t * z * R * T / P
@@ -575,18 +590,18 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
             if status == CONVERGED:
                 if not recorded or ints[STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
                     _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                            system.nu_pinv, A, code, T, w)
+                            system.nu_pinv, A, code, T, wb)
                     recorded = True
                     best = value
                 if not ambiguous:
                     break
             elif not recorded or ints[STATUS] != CONVERGED:
                 _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                        system.nu_pinv, A, code, T, w)
+                        system.nu_pinv, A, code, T, wb)
                 recorded = True
     ints[ITERATIONS] = total_iterations
     ints[OUTER] = total_outer
-    ints[MAY_SPLIT] = 0 if code != MODEL_CUBIC or one_root_everywhere(T, w.a_ij, w.b_i, consts, active) else 1
+    ints[MAY_SPLIT] = 0 if roots == ONE_ROOT else 1
     _check_answer(row, ints, layout, code, n0, A, fixed_volume)
     if ints[STATUS] != CONVERGED or ints[METHOD] != opts.method:
         return False
@@ -614,7 +629,7 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     nc = n0.shape[0]
     nr = system.nu.shape[0]
     k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
-    fbuf, ibuf, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
+    work, one_T, one_PV, one_n0, one_pat, one_valid, no_ln_k, no_guess = _scalar_buffers(nc, nr, k)
     one_T[0] = T
     one_PV[0] = PV
     one_n0[0] = n0
@@ -626,7 +641,7 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
     _solve_chunk(system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, rows, ints_one,
-                 fbuf, ibuf, k)
+                 work)
 
 
 _scalar = threading.local()
@@ -641,24 +656,23 @@ def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
         cache = _scalar.buffers = {}
     found = cache.get((nc, nr, k))
     if found is None:
-        found = (*make_work_buffers(nc, nr, k), np.empty(1), np.empty(1), np.empty((1, nc)), np.empty(1, dtype=np.int64),
+        found = (make_work(nc, nr, k), np.empty(1), np.empty(1), np.empty((1, nc)), np.empty(1, dtype=np.int64),
                  np.ones(1, dtype=np.uint8), np.empty((0, nr)), np.empty((0, 0)))
         cache[(nc, nr, k)] = found
     return found
 
 
 @kernel
-def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, fbuf, ibuf, ne):
+def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers (the :class:`~hipeq.solvers._common.Work` views of ``fbuf`` and ``ibuf``, sized for ``ne`` element
-    rows), each warm-started from the previous converged one of the same pattern where that is safe (see the
+    buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous converged one of the same pattern where that is safe (see the
     module docstring); the answers go to ``rows`` and ``ints``. ``ln_k_user`` and ``guesses`` (the caller's
     start, used when ``opts.guess``) have one row per state or none. The chunk starts as if alone: no cubic root
     and no feed polytope carried over from what the buffers held before."""
     nc = N0.shape[1]
-    work = work_views(fbuf, ibuf, nc, system.nu.shape[0], ne)
-    work.model_scratch[2, 0] = 0.0
-    work.vertex_info[1] = 0
+    w = work_views(work)
+    w.model_scratch[2, 0] = 0.0
+    w.vertex_info[1] = 0
     layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
     empty = T[0:0]
     last_T = -1.0
@@ -751,7 +765,7 @@ def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chu
         first = c * chunk
         m = min(n, first + chunk) - first
         ne = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
-        fbuf, ibuf = make_work_buffers(nc, nr, ne)
+        work = make_work(nc, nr, ne)
         # the chunk's states gathered into solving order, and its answers scattered back at the end: the
         # solve itself then reads and writes memory in sequence
         Tl = np.empty(m)
@@ -763,7 +777,7 @@ def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chu
         rows = np.empty((m, width))
         ints = np.empty((m, INT_COLUMNS), dtype=np.int64)
         _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, fbuf, ibuf, ne)
+        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, work)
         _scatter(order[first:first + m], rows, ints, out, out_ints)
 
 

@@ -32,7 +32,7 @@ import math
 
 from hipeq._jit import inline_kernel, kernel
 from hipeq.solvers._common import (CONVERGED, ELEMENT_ATOL, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE,
-                                   SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve)
+                                   SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve, work_views)
 
 LOG_STEP_MAJOR = 2.0  # largest change of ln n_i per iteration for species above TRACE in mole fraction
 TRACE = 1e-3
@@ -42,12 +42,13 @@ MAX_POLISH = 3
 
 
 @inline_kernel
-def _fit_potentials(Q, neq, n, mu, active, w):
+def _fit_potentials(Q, neq, n, mu, active, wb):
     """Element potentials by weighted least squares, min sum_i w_i (mu_i - sum_e Q_ei lambda_e)^2 with w_i = n_i;
     when that normal matrix is singular to working precision (an element carried only by 1e-12 mol beside
     9 mol of a species carrying the others makes two rows nearly parallel in that weighting), with w_i = 1 on the
     active species, whose normal matrix Q Q^T is regular (independent rows). Only a start for the Newton
     iteration, which corrects the potentials."""
+    w = work_views(wb)
     if neq == 0:
         return True
     nc = n.shape[0]
@@ -73,7 +74,8 @@ def _fit_potentials(Q, neq, n, mu, active, w):
 
 
 @inline_kernel
-def _residuals(Q, neq, n, mu, active, r, w):
+def _residuals(Q, neq, n, mu, active, r, wb):
+    w = work_views(wb)
     nc = n.shape[0]
     lam = w.potentials
     rmax = 0.0
@@ -97,8 +99,9 @@ def _residuals(Q, neq, n, mu, active, r, w):
 
 
 @inline_kernel
-def _newton(Q, neq, n, n_t, use_jac, jac, active, r, w):
+def _newton(Q, neq, n, n_t, use_jac, jac, active, r, wb):
     """Assemble and solve the log-amount Newton system; returns (ok, number of active species)."""
+    w = work_views(wb)
     nc = n.shape[0]
     idx = w.kkt_index
     rhs = w.kkt_rhs
@@ -167,8 +170,9 @@ def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
 
 
 @inline_kernel
-def _update(neq, n, n_t, m, w):
+def _update(neq, n, n_t, m, wb):
     """Damped multiplicative update of the amounts and additive update of the element potentials."""
+    w = work_views(wb)
     idx = w.kkt_index
     sol = w.kkt_solution
     alpha = 1.0
@@ -199,7 +203,7 @@ def _update(neq, n, n_t, m, w):
 
 @kernel
 def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
-                w):
+                wb):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
 
     The first neq rows of Q are independent rows of the element matrix restricted to the active species (one
@@ -210,6 +214,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     Returns (status, iterations, outer_iterations, n_T, Z, root); rows F_N, F_Y, F_LNPHI, F_MU hold the last
     iterate.
     """
+    w = work_views(wb)
     nc = n0.shape[0]
     total = 0.0
     for e in range(neq):
@@ -234,7 +239,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                                n_null, jac, scratch)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
-    if not _fit_potentials(Q, neq, n, mu, active, w):
+    if not _fit_potentials(Q, neq, n, mu, active, wb):
         return SINGULAR, 0, 0, n_t, z, root
     mode = WITH_JACOBIAN if coupled else FROZEN_PHI
     inner_tol = 0.1 * tol
@@ -244,14 +249,14 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     last = 0.0
     inner = False  # nested scheme: inside the loop with ln phi frozen (the ideal-solution RAND iteration)
     while True:
-        rmax, emax = _residuals(Q, neq, n, mu, active, r, w)
+        rmax, emax = _residuals(Q, neq, n, mu, active, r, wb)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
                                        jac, mu, Nb, n_null, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
-            rmax, emax = _residuals(Q, neq, n, mu, active, r, w)
+            rmax, emax = _residuals(Q, neq, n, mu, active, r, wb)
         met = not inner and rmax <= tol and emax <= ELEMENT_TOL  # the current iterate meets the tolerances
         if not inner:
             if met:
@@ -267,12 +272,12 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                 inner = True
         use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, w.jac_try, w.kkt, w.dn,
                                               w.y_try, w.n_try)
-        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, w)
+        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, wb)
         if not ok:
             if met:  # a polish step failed; the current iterate (not yet moved) meets the tolerances
                 return CONVERGED, iterations, outer, n_t, z, root
             return SINGULAR, iterations, outer, n_t, z, root
-        _update(neq, n, n_t, m, w)
+        _update(neq, n, n_t, m, wb)
         iterations += 1
         n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
                                            mu, Nb, n_null, jac, scratch)
