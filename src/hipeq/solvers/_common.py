@@ -62,7 +62,8 @@ LOG_TINY = math.log(TINY)
 # work buffers of a chunk of states: one named tuple (numba passes it as one argument), one array per role
 # ---------------------------------------------------------------------------------------------------------
 class Work(NamedTuple):
-    """Work buffers of one chunk of states, allocated once per chunk as :class:`WorkBuffers` (:func:`make_work`, viewed by :func:`work_views`; nc species, k =
+    """Work buffers of one chunk of states, allocated once per chunk as :class:`WorkBuffers`
+    (:func:`make_work`, viewed by :func:`work_views`; nc species, k =
     max(n_reactions, n_element_rows, 1), big = nc + ne + 1). Kept between states of a chunk: ``n_prev``,
     ``n0_prev``, ``g0_prev``, ``extents_prev``, ``ln_p_prev`` (the last converged state, for warm starts),
     ``model_scratch[2, 0]`` (the last cubic root, the start of the next) and ``vertices``/``vertex_info`` (the
@@ -143,57 +144,25 @@ class WorkBuffers(NamedTuple):
 
 
 @inline_kernel
-def _take(buf, start, count):
-    """buf[start:start + count] and the next start."""
-    return buf[start:start + count], start + count
-
-
-@inline_kernel
 def work_views(wb):
-    """The :class:`Work` view of :class:`WorkBuffers` ``wb`` (slices and sub-arrays, no copies)."""
+    """The :class:`Work` view of :class:`WorkBuffers` ``wb`` (slices and sub-arrays, no copies). Plain slices of
+    ``wb.vectors``: per species at [i nc, (i + 1) nc) in the order of :class:`Work`, then per reaction at
+    [16 nc + j k, ...), then ``ln_p_prev``, ``kkt_rhs`` and ``kkt_solution``."""
     nc, k, big = wb.nc, wb.k, wb.big
     f = wb.vectors
-    a = 0
-    n, a = _take(f, a, nc)
-    n_try, a = _take(f, a, nc)
-    y, a = _take(f, a, nc)
-    y_try, a = _take(f, a, nc)
-    ln_phi, a = _take(f, a, nc)
-    ln_phi_try, a = _take(f, a, nc)
-    mu, a = _take(f, a, nc)
-    mu_try, a = _take(f, a, nc)
-    dn, a = _take(f, a, nc)
-    species_residuals, a = _take(f, a, nc)
-    g0, a = _take(f, a, nc)
-    n_prev, a = _take(f, a, nc)
-    n0_prev, a = _take(f, a, nc)
-    g0_prev, a = _take(f, a, nc)
-    b_i, a = _take(f, a, nc)
-    db_i_dT, a = _take(f, a, nc)
-    grad, a = _take(f, a, k)
-    rhs, a = _take(f, a, k)
-    step, a = _take(f, a, k)
-    scale, a = _take(f, a, k)
-    potentials, a = _take(f, a, k)
-    element_totals, a = _take(f, a, k)
-    element_balance, a = _take(f, a, k)
-    element_scale, a = _take(f, a, k)
-    extents, a = _take(f, a, k)
-    ln_k, a = _take(f, a, k)
-    extents_prev, a = _take(f, a, k)
-    extents_start, a = _take(f, a, k)
-    ln_p_prev, a = _take(f, a, 1)
-    kkt_rhs, a = _take(f, a, big)
-    kkt_solution, a = _take(f, a, big)
-    b = 0
-    kkt_index, b = _take(wb.ints, b, big)
-    pivots, b = _take(wb.ints, b, big)
-    vertex_info, b = _take(wb.ints, b, 3)
-    return Work(n, n_try, y, y_try, ln_phi, ln_phi_try, mu, mu_try, dn, species_residuals, g0, n_prev, n0_prev,
-                g0_prev, b_i, db_i_dT, wb.scratch, wb.pairs[0], wb.pairs[1], wb.pairs[2], wb.pairs[3], grad, rhs,
-                step, scale, potentials, element_totals, element_balance, element_scale, extents, ln_k,
-                extents_prev, extents_start, ln_p_prev, wb.small[0], wb.small[1], wb.small[2], wb.small[3], wb.kkt,
-                kkt_rhs, kkt_solution, kkt_index, pivots, wb.vertices, vertex_info)
+    o = 16 * nc
+    q = o + 12 * k + 1
+    g = wb.ints
+    return Work(
+        f[0:nc], f[1 * nc:2 * nc], f[2 * nc:3 * nc], f[3 * nc:4 * nc], f[4 * nc:5 * nc], f[5 * nc:6 * nc],
+        f[6 * nc:7 * nc], f[7 * nc:8 * nc], f[8 * nc:9 * nc], f[9 * nc:10 * nc], f[10 * nc:11 * nc],
+        f[11 * nc:12 * nc], f[12 * nc:13 * nc], f[13 * nc:14 * nc], f[14 * nc:15 * nc], f[15 * nc:16 * nc],
+        wb.scratch, wb.pairs[0], wb.pairs[1], wb.pairs[2], wb.pairs[3], f[o:o + k], f[o + 1 * k:o + 2 * k],
+        f[o + 2 * k:o + 3 * k], f[o + 3 * k:o + 4 * k], f[o + 4 * k:o + 5 * k], f[o + 5 * k:o + 6 * k],
+        f[o + 6 * k:o + 7 * k], f[o + 7 * k:o + 8 * k], f[o + 8 * k:o + 9 * k], f[o + 9 * k:o + 10 * k],
+        f[o + 10 * k:o + 11 * k], f[o + 11 * k:o + 12 * k], f[o + 12 * k:q], wb.small[0], wb.small[1], wb.small[2],
+        wb.small[3], wb.kkt, f[q:q + big], f[q + big:q + 2 * big], g[0:big], g[big:2 * big], wb.vertices,
+        g[2 * big:2 * big + 3])
 
 
 @entry

@@ -29,8 +29,8 @@ the vessel at that density.
 A converged answer is checked before it is reported: every element balance closed (``element_residuals``), every
 output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
 Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
-allocated once per chunk (``make_work``, a ``WorkBuffers``); answers are written as one packed float row and one integer row per
-state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
+allocated once per chunk (``make_work``, a ``WorkBuffers``); answers are written as one packed float row and one
+integer row per state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
 """
 from __future__ import annotations
 
@@ -127,7 +127,8 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
             if VX[0, i] != n0[i]:
                 same = False
                 break
-    if not same and not _polytope_vertices(active, n0, null, n_null, wb):
+    if not same and not _polytope_vertices(active, n0, null, n_null, w.vertices, w.vertex_info, w.kkt, w.kkt_rhs,
+                                           w.kkt_solution, w.kkt_index, w.pivots):
         return SEVERAL_ROOTS  # too many candidate vertices to enumerate: the safe side
     VI[2] = pat
     for v in range(1, VI[0] + 1):
@@ -141,15 +142,14 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
 
 
 @kernel
-def _polytope_vertices(active, n0, null, n_null, wb):
+def _polytope_vertices(active, n0, null, n_null, vertices, vertex_info, kkt, kkt_rhs, kkt_solution, kkt_index, pivots):
     """The vertices of {n = n0 + null t >= 0} (every set of n_null active species at zero whose solution is
     feasible) into vertices[1:], the feed into vertices[0], their count into vertex_info[0] and vertex_info[1] = 1;
     False (vertex_info[1] = 0) when
     there are more candidate sets than MAX_VERTICES."""
-    w = work_views(wb)
     nc = n0.shape[0]
-    VX, VI = w.vertices, w.vertex_info
-    M, rhs, x, idx, piv = w.kkt, w.kkt_rhs, w.kkt_solution, w.kkt_index, w.pivots
+    VX, VI = vertices, vertex_info
+    M, rhs, x, idx, piv = kkt, kkt_rhs, kkt_solution, kkt_index, pivots
     VI[1] = 0
     VI[0] = 0
     m = 0
@@ -209,10 +209,9 @@ def _polytope_vertices(active, n0, null, n_null, wb):
 
 
 @kernel
-def _cold_start(n0, active, direction, xdir, nr, fraction, wb):
+def _cold_start(n0, active, direction, xdir, nr, fraction, n, extents):
     """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps ``fraction`` of the largest step keeping
     n >= 0 (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
-    w = work_views(wb)
     nc = n0.shape[0]
     eps = np.inf
     for i in range(nc):
@@ -225,26 +224,25 @@ def _cold_start(n0, active, direction, xdir, nr, fraction, wb):
         v = n0[i] + eps * direction[i] if active[i] else 0.0
         if active[i] and not (v > 0.0):
             v = 1e-300
-        w.n[i] = v
+        n[i] = v
     for r in range(nr):
-        w.extents[r] = eps * xdir[r]
+        extents[r] = eps * xdir[r]
 
 
 @kernel
-def _start_from_extents(n0, nu, active, wb):
+def _start_from_extents(n0, nu, active, extents, n):
     """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
-    w = work_views(wb)
     nc = n0.shape[0]
     nr = nu.shape[0]
     total = 0.0
     for i in range(nc):
         v = n0[i]
         for r in range(nr):
-            v += nu[r, i] * w.extents[r]
-        w.n[i] = v if active[i] else 0.0
+            v += nu[r, i] * extents[r]
+        n[i] = v if active[i] else 0.0
         total += abs(v)
     for i in range(nc):
-        if active[i] and not (w.n[i] > 1e-14 * total):
+        if active[i] and not (n[i] > 1e-14 * total):
             return False
     return True
 
@@ -262,15 +260,14 @@ def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, 
 
 
 @kernel
-def _boundary_reason(code, at_ceiling, V, n_t, wb):
+def _boundary_reason(code, at_ceiling, V, n_t, y, b_i):
     """Why a sealed-vessel search ended at a pressure limit."""
-    w = work_views(wb)
     if not at_ceiling:
         return REASON_BELOW_FLOOR
     if code == MODEL_CUBIC:
         b = 0.0
-        for i in range(w.y.shape[0]):
-            b += w.y[i] * w.b_i[i]
+        for i in range(y.shape[0]):
+            b += y[i] * b_i[i]
         if V <= n_t * b:
             return REASON_BELOW_COVOLUME
     return REASON_ABOVE_CEILING
@@ -357,7 +354,8 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
             s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
         if s_new >= s_ceiling:
             if s >= s_ceiling:  # already at the ceiling and still too large a volume
-                return (PRESSURE_NOT_FOUND, _boundary_reason(code, True, V, n_t, wb), total, k + 1, n_t, z, root,
+                reason = _boundary_reason(code, True, V, n_t, w.y, w.b_i)
+                return (PRESSURE_NOT_FOUND, reason, total, k + 1, n_t, z, root,
                         P)
             s_new = s_ceiling
         elif s_new <= s_floor:
@@ -374,18 +372,17 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
 
 @inline_kernel
 def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
-            T, wb):
-    """Write the current iterate (rows F_N, F_LNPHI, F_MU, S_XI of the work buffers) as the answer of a state."""
-    w = work_views(wb)
+            T, n, ln_phi, mu, extents, y, b_i):
+    """Write the current iterate (amounts, ln phi, potentials, extents of the work buffers) as a state's answer."""
     nc = n0.shape[0]
     nr = nu.shape[0]
     total = 0.0
     for i in range(nc):
-        total += w.n[i]
+        total += n[i]
     for i in range(nc):
-        row[layout.amounts + i] = w.n[i]
-        row[layout.y + i] = w.n[i] / total if total > 0.0 else 0.0
-        row[layout.ln_phis + i] = w.ln_phi[i] if root >= 0 else 0.0
+        row[layout.amounts + i] = n[i]
+        row[layout.y + i] = n[i] / total if total > 0.0 else 0.0
+        row[layout.ln_phis + i] = ln_phi[i] if root >= 0 else 0.0
     for r in range(nr):
         frozen = False
         for i in range(nc):
@@ -395,15 +392,15 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
         v = 0.0
         if not frozen and root >= 0:
             for i in range(nc):
-                v += nu[r, i] * w.mu[i]
+                v += nu[r, i] * mu[i]
         row[layout.residuals + r] = v
         if method == METHOD_EXTENT:
-            row[layout.extents + r] = w.extents[r]
+            row[layout.extents + r] = extents[r]
         else:
             # extents of the Gibbs answer, xi = nu_pinv^T (n - n0) (exact when n - n0 is in the span of nu)
             v = 0.0
             for i in range(nc):
-                v += nu_pinv[i, r] * (w.n[i] - n0[i])
+                v += nu_pinv[i, r] * (n[i] - n0[i])
             row[layout.extents + r] = v
     row[layout.P] = P
     row[layout.V] = V
@@ -413,7 +410,7 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
     if code == MODEL_CUBIC and root >= 0:
         b = 0.0
         for i in range(nc):
-            b += w.y[i] * w.b_i[i]
+            b += y[i] * b_i[i]
         if b > 0.0 and (z * R * T / P) / b < LIQUID_LIKE_REDUCED_VOLUME:
             liquid = True
     ints[STATUS] = status
@@ -459,7 +456,8 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     """Solve one state; writes its float answer row ``row`` (``answer_layout``) and integer row ``ints``
     (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT). ``new_T``: recompute the
     temperature-dependent parameters; ``warm``: the work buffers (``work``, a WorkBuffers) hold a converged
-    previous state of the same pattern (``n_prev``, ``n0_prev``, ``extents_prev``). Returns True when the answer can warm-start the next state. Compiled into its callers
+    previous state of the same pattern (``n_prev``, ``n0_prev``, ``extents_prev``). Returns True when the
+    answer can warm-start the next state. Compiled into its callers
     (one call site each)."""
     wb = work
     w = work_views(wb)
@@ -528,7 +526,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                 if method == METHOD_EXTENT:
                     for r in range(nr):
                         w.extents[r] = guess[r]
-                    started = _start_from_extents(n0, nu, active, wb)
+                    started = _start_from_extents(n0, nu, active, w.extents, w.n)
                 else:
                     started = True
                     for i in range(nc):
@@ -554,7 +552,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                 elif method == METHOD_EXTENT:
                     for r in range(nr):
                         w.extents[r] = w.extents_prev[r] * n_feed / prev_total
-                    started = _start_from_extents(n0, nu, active, wb)
+                    started = _start_from_extents(n0, nu, active, w.extents, w.n)
                 else:
                     started = True
                     for i in range(nc):
@@ -562,7 +560,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                         w.n[i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
             if not started:
                 fraction = COLD_FRACTIONS[k - first_cold] if k >= first_cold else COLD_FRACTIONS[0]
-                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, wb)
+                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, w.n, w.extents)
             # ---- solve
             reason = REASON_NONE
             P = PV
@@ -590,14 +588,14 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
             if status == CONVERGED:
                 if not recorded or ints[STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
                     _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                            system.nu_pinv, A, code, T, wb)
+                            system.nu_pinv, A, code, T, w.n, w.ln_phi, w.mu, w.extents, w.y, w.b_i)
                     recorded = True
                     best = value
                 if not ambiguous:
                     break
             elif not recorded or ints[STATUS] != CONVERGED:
                 _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                        system.nu_pinv, A, code, T, wb)
+                        system.nu_pinv, A, code, T, w.n, w.ln_phi, w.mu, w.extents, w.y, w.b_i)
                 recorded = True
     ints[ITERATIONS] = total_iterations
     ints[OUTER] = total_outer
@@ -665,7 +663,8 @@ def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
 @kernel
 def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
     """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous converged one of the same pattern where that is safe (see the
+    buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous
+    converged one of the same pattern where that is safe (see the
     module docstring); the answers go to ``rows`` and ``ints``. ``ln_k_user`` and ``guesses`` (the caller's
     start, used when ``opts.guess``) have one row per state or none. The chunk starts as if alone: no cubic root
     and no feed polytope carried over from what the buffers held before."""

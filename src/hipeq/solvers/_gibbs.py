@@ -42,18 +42,16 @@ MAX_POLISH = 3
 
 
 @inline_kernel
-def _fit_potentials(Q, neq, n, mu, active, wb):
+def _fit_potentials(Q, neq, n, mu, active, hessian, rhs, potentials, factor, scale):
     """Element potentials by weighted least squares, min sum_i w_i (mu_i - sum_e Q_ei lambda_e)^2 with w_i = n_i;
     when that normal matrix is singular to working precision (an element carried only by 1e-12 mol beside
     9 mol of a species carrying the others makes two rows nearly parallel in that weighting), with w_i = 1 on the
     active species, whose normal matrix Q Q^T is regular (independent rows). Only a start for the Newton
     iteration, which corrects the potentials."""
-    w = work_views(wb)
     if neq == 0:
         return True
     nc = n.shape[0]
-    H = w.hessian
-    rhs = w.rhs
+    H = hessian
     for weighted in (True, False):
         for e in range(neq):
             v = 0.0
@@ -68,16 +66,15 @@ def _fit_potentials(Q, neq, n, mu, active, wb):
                         v += Q[e, i] * Q[f, i] * (n[i] if weighted else 1.0)
                 H[e, f] = v
                 H[f, e] = v
-        if cholesky_solve(H, rhs, neq, w.potentials, w.factor, w.scale):
+        if cholesky_solve(H, rhs, neq, potentials, factor, scale):
             return True
     return False
 
 
 @inline_kernel
-def _residuals(Q, neq, n, mu, active, r, wb):
-    w = work_views(wb)
+def _residuals(Q, neq, n, mu, active, r, potentials, element_totals, element_balance, element_scale):
     nc = n.shape[0]
-    lam = w.potentials
+    lam = potentials
     rmax = 0.0
     for i in range(nc):
         if active[i]:
@@ -90,22 +87,22 @@ def _residuals(Q, neq, n, mu, active, r, wb):
             r[i] = 0.0
     emax = 0.0
     for e in range(neq):
-        v = -w.element_totals[e]
+        v = -element_totals[e]
         for i in range(nc):
             v += Q[e, i] * n[i]
-        w.element_balance[e] = v
-        emax = max(emax, abs(v) / w.element_scale[e])
+        element_balance[e] = v
+        emax = max(emax, abs(v) / element_scale[e])
     return rmax, emax
 
 
 @inline_kernel
-def _newton(Q, neq, n, n_t, use_jac, jac, active, r, wb):
+def _newton(Q, neq, n, n_t, use_jac, jac, active, r, kkt_index, kkt_rhs, kkt, element_scale, element_balance,
+            kkt_solution, pivots):
     """Assemble and solve the log-amount Newton system; returns (ok, number of active species)."""
-    w = work_views(wb)
     nc = n.shape[0]
-    idx = w.kkt_index
-    rhs = w.kkt_rhs
-    M = w.kkt
+    idx = kkt_index
+    rhs = kkt_rhs
+    M = kkt
     m = 0
     for i in range(nc):
         if active[i]:
@@ -129,13 +126,13 @@ def _newton(Q, neq, n, n_t, use_jac, jac, active, r, wb):
     for e in range(neq):
         for c in range(m):
             j = idx[c]
-            M[m + e, c] = Q[e, j] * n[j] / w.element_scale[e]
-        rhs[m + e] = -w.element_balance[e] / w.element_scale[e]
+            M[m + e, c] = Q[e, j] * n[j] / element_scale[e]
+        rhs[m + e] = -element_balance[e] / element_scale[e]
     for c in range(m):
         M[size - 1, c] = n[idx[c]] / n_t
     M[size - 1, size - 1] = -1.0
     rhs[size - 1] = 0.0
-    return lu_solve(M, rhs, size, w.kkt_solution, w.pivots), m
+    return lu_solve(M, rhs, size, kkt_solution, pivots), m
 
 
 @inline_kernel
@@ -170,11 +167,10 @@ def _locally_convex(n, n_t, jac, active, Nb, n_null, H, L, scale, rhs, x):
 
 
 @inline_kernel
-def _update(neq, n, n_t, m, wb):
+def _update(neq, n, n_t, m, kkt_index, kkt_solution, potentials):
     """Damped multiplicative update of the amounts and additive update of the element potentials."""
-    w = work_views(wb)
-    idx = w.kkt_index
-    sol = w.kkt_solution
+    idx = kkt_index
+    sol = kkt_solution
     alpha = 1.0
     for a in range(m):
         i = idx[a]
@@ -197,7 +193,7 @@ def _update(neq, n, n_t, m, wb):
         if not (n[i] > 0.0):
             n[i] = 1e-300
     for e in range(neq):
-        w.potentials[e] += alpha * sol[m + e]
+        potentials[e] += alpha * sol[m + e]
     return alpha
 
 
@@ -239,7 +235,7 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                                n_null, jac, scratch)
     if root < 0:
         return NO_PHYSICAL_STATE, 0, 0, n_t, z, root
-    if not _fit_potentials(Q, neq, n, mu, active, wb):
+    if not _fit_potentials(Q, neq, n, mu, active, w.hessian, w.rhs, w.potentials, w.factor, w.scale):
         return SINGULAR, 0, 0, n_t, z, root
     mode = WITH_JACOBIAN if coupled else FROZEN_PHI
     inner_tol = 0.1 * tol
@@ -249,14 +245,16 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     last = 0.0
     inner = False  # nested scheme: inside the loop with ln phi frozen (the ideal-solution RAND iteration)
     while True:
-        rmax, emax = _residuals(Q, neq, n, mu, active, r, wb)
+        rmax, emax = _residuals(Q, neq, n, mu, active, r, w.potentials, w.element_totals, w.element_balance,
+                                w.element_scale)
         if inner and ((rmax <= inner_tol and emax <= ELEMENT_TOL) or iterations >= max_iter):
             n_t, z, root, g = evaluate(WITH_PHI, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi,
                                        jac, mu, Nb, n_null, jac, scratch)
             if root < 0:
                 return NO_PHYSICAL_STATE, iterations, outer, n_t, z, root
             inner = False
-            rmax, emax = _residuals(Q, neq, n, mu, active, r, wb)
+            rmax, emax = _residuals(Q, neq, n, mu, active, r, w.potentials, w.element_totals,
+                                    w.element_balance, w.element_scale)
         met = not inner and rmax <= tol and emax <= ELEMENT_TOL  # the current iterate meets the tolerances
         if not inner:
             if met:
@@ -272,12 +270,13 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
                 inner = True
         use_jac = coupled and _locally_convex(n, n_t, jac, active, Nb, n_null, w.jac_try, w.kkt, w.dn,
                                               w.y_try, w.n_try)
-        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, wb)
+        ok, m = _newton(Q, neq, n, n_t, use_jac, jac, active, r, w.kkt_index, w.kkt_rhs, w.kkt,
+                        w.element_scale, w.element_balance, w.kkt_solution, w.pivots)
         if not ok:
             if met:  # a polish step failed; the current iterate (not yet moved) meets the tolerances
                 return CONVERGED, iterations, outer, n_t, z, root
             return SINGULAR, iterations, outer, n_t, z, root
-        _update(neq, n, n_t, m, wb)
+        _update(neq, n, n_t, m, w.kkt_index, w.kkt_solution, w.potentials)
         iterations += 1
         n_t, z_new, root_new, g = evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, jac,
                                            mu, Nb, n_null, jac, scratch)
