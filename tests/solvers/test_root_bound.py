@@ -31,7 +31,7 @@ def _bound(system: hipeq.ReactionSystem, T: float, n0: np.ndarray) -> tuple[bool
     aij, bi = np.zeros((nc, nc)), np.zeros(nc)
     tparams_into(arrays.model_code, T, arrays.components, arrays.model_constants, arrays.kij, aij, bi,
                  np.zeros((nc, nc)), np.zeros(nc))
-    work = make_work(nc, arrays.nu.shape[0], arrays.elements.shape[0])
+    work = python_views(make_work(nc, arrays.nu.shape[0], arrays.elements.shape[0]))
     flag = several_roots_possible(arrays.model_code, T, aij, bi, arrays.model_constants,
                                   patterns.gibbs_active[pat], n0, patterns.gibbs_null[pat],
                                   int(patterns.gibbs_null_rank[pat]), pat, work)
@@ -93,7 +93,7 @@ def test_kept_vertices_give_the_fresh_answer_at_every_temperature() -> None:
     key = int(sum(1 << i for i in range(7) if n0[i] > 0))
     patterns, (pat,), _ = system.compiled.patterns_for([key])
     nc, nr, ne = 7, arrays.nu.shape[0], arrays.elements.shape[0]
-    kept = make_work(nc, nr, ne)
+    kept = python_views(make_work(nc, nr, ne))
     answers = set()
     for T in np.linspace(300.0, 900.0, 25):
         aij, bi = np.zeros((nc, nc)), np.zeros(nc)
@@ -102,7 +102,7 @@ def test_kept_vertices_give_the_fresh_answer_at_every_temperature() -> None:
         args = (arrays.model_code, T, aij, bi, arrays.model_constants, patterns.gibbs_active[pat], n0,
                 patterns.gibbs_null[pat], int(patterns.gibbs_null_rank[pat]), pat)
         reused = several_roots_possible(*args, kept)
-        fresh = several_roots_possible(*args, make_work(nc, nr, ne))
+        fresh = several_roots_possible(*args, python_views(make_work(nc, nr, ne)))
         assert reused == fresh, T
         answers.add(fresh == SEVERAL_ROOTS)
-    assert answers == {True, False} and python_views(kept).vertex_info[1] == 1  # both sides met; the vertices were kept
+    assert answers == {True, False} and kept.vertex_info[1] == 1  # both sides met; the vertices were kept

@@ -126,10 +126,9 @@ class WorkBuffers(NamedTuple):
     """The work buffers of a chunk as they travel between compiled functions: ``vectors`` (one flat float64
     array holding every per-species and per-reaction vector), ``scratch`` (3, nc), ``pairs`` (4, nc, nc),
     ``small`` (4, k, k), ``kkt`` (big, big), ``vertices`` (MAX_VERTICES + 1, nc), ``ints`` (int64) and the sizes
-    they were made for. Each kernel that needs them views them as a :class:`Work` (``w = work_views(wb)``,
-    inlined: slicing only, which the compiler drops for the views a kernel does not use). Handing the forty-five
-    arrays of a Work from call to call instead cost a fifth of the batch speed (each array is about nine machine
-    words of arguments)."""
+    they were made for: what Python hands the compiled solver (seven arrays for the dispatcher to type instead of
+    forty-five). A chunk views them once as a :class:`Work` (:func:`work_views`) and hands that down by name.
+    (Building the views again in every kernel that needs them cost more than handing the Work down.)"""
 
     vectors: np.ndarray
     scratch: np.ndarray

@@ -78,7 +78,7 @@ START_COLD = 2
 
 
 @kernel
-def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, wb):
+def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, pat, w):
     """SEVERAL_ROOTS when the cubic could have three volume roots at T [K] for some composition the feed ``n0``
     can reach (n = n0 + null t >= 0, the columns of ``null`` spanning the feasible composition changes of the
     active species); else CONDENSABLE when some active species is below its (k_ij-widened) critical temperature
@@ -96,7 +96,6 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
     of states with one feed pays the enumeration once. Past MAX_VERTICES candidate sets the answer is True (the
     safe side). Always ONE_ROOT for the other models (one root per state). The Gibbs Newton buffers of ``w``
     serve as scratch."""
-    w = work_views(wb)
     if code != MODEL_CUBIC:
         return ONE_ROOT
     nc = bi.shape[0]
@@ -249,14 +248,13 @@ def _start_from_extents(n0, nu, active, extents, n):
 
 @inline_kernel
 def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
-                       max_iter, wb):
-    w = work_views(wb)
+                       max_iter, w):
     ln_p = math.log(P) - LN_P_STANDARD
     if method == METHOD_EXTENT:
         return extent_solve(code, T, P, ln_p, w.g0, W, Zb, neff, active, w.extents, w.a_ij, w.b_i, consts,
-                            coupled, tol, max_iter, wb)
+                            coupled, tol, max_iter, w)
     return gibbs_solve(code, T, P, ln_p, n0, w.g0, Q, neq, Nb, n_null, active, w.a_ij, w.b_i, consts,
-                       coupled, tol_g, max_iter, wb)
+                       coupled, tol_g, max_iter, w)
 
 
 @kernel
@@ -275,10 +273,9 @@ def _boundary_reason(code, at_ceiling, V, n_t, y, b_i):
 
 @kernel
 def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
-                     tol, tol_g, tol_v, max_iter, wb):
+                     tol, tol_g, tol_v, max_iter, w):
     """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
     (status, reason, iterations, outer, n_T, Z, root, P)."""
-    w = work_views(wb)
     nc = n0.shape[0]
     nr = w.extents.shape[0]
     s_floor = math.log(P_FLOOR)
@@ -309,7 +306,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
     for k in range(MAX_PRESSURE_STEPS):
         P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
         status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
-                                                         active, consts, coupled, tol, tol_g, max_iter, wb)
+                                                         active, consts, coupled, tol, tol_g, max_iter, w)
         total += it
         if status == NO_PHYSICAL_STATE:
             # no state of the model at this pressure: treat it as "too high" and step back
@@ -455,12 +452,11 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
 def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T, warm, work, row, ints):
     """Solve one state; writes its float answer row ``row`` (``answer_layout``) and integer row ``ints``
     (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT). ``new_T``: recompute the
-    temperature-dependent parameters; ``warm``: the work buffers (``work``, a WorkBuffers) hold a converged
+    temperature-dependent parameters; ``warm``: the work buffers (``work``, the chunk's Work) hold a converged
     previous state of the same pattern (``n_prev``, ``n0_prev``, ``extents_prev``). Returns True when the
     answer can warm-start the next state. Compiled into its callers
     (one call site each)."""
-    wb = work
-    w = work_views(wb)
+    w = work
     nc = n0.shape[0]
     nu = system.nu
     nr = nu.shape[0]
@@ -489,7 +485,7 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     for i in range(nc):
         n_feed += n0[i]
     roots = several_roots_possible(code, T, w.a_ij, w.b_i, consts, patterns.gibbs_active[pat], n0,
-                                   patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, wb)
+                                   patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, w)
     ambiguous = roots == SEVERAL_ROOTS
     fixed_volume = opts.fixed_volume
     recorded = False
@@ -569,13 +565,13 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
                     method, code, T, PV, n_feed * R * T / PV, n0, patterns.extent_directions[pat],
                     patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
                     patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts,
-                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, wb)
+                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, w)
             else:
                 status, iters, outer, n_t, z, root = _solve_at_pressure(
                     method, code, T, P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
                     patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
                     patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled, opts.tol,
-                    opts.tol_gibbs, opts.max_iterations, wb)
+                    opts.tol_gibbs, opts.max_iterations, w)
             total_iterations += iters
             total_outer += outer
             V = n_t * z * R * T / P
@@ -669,7 +665,7 @@ def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, o
     start, used when ``opts.guess``) have one row per state or none. The chunk starts as if alone: no cubic root
     and no feed polytope carried over from what the buffers held before."""
     nc = N0.shape[1]
-    w = work_views(work)
+    w = work_views(work)  # the Work views of the chunk's buffers, built once and handed down by name
     w.model_scratch[2, 0] = 0.0
     w.vertex_info[1] = 0
     layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
@@ -701,7 +697,7 @@ def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, o
         guess = guesses[k] if guesses.shape[0] > 0 else empty
         use_warm = warm and pat == last_pat and opts.warm
         warm = solve_state(system, patterns, T[k], PV[k], N0[k], pat, user, guess, opts, T[k] != last_T, use_warm,
-                           work, row, ints[k])
+                           w, row, ints[k])
         last_T = T[k]
         last_pat = pat
 

@@ -30,7 +30,7 @@ from __future__ import annotations
 
 from hipeq._jit import inline_kernel, kernel
 from hipeq.solvers._common import (CONVERGED, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE, SINGULAR, STALLED,
-                                   WITH_PHI, WITH_REDUCED, cholesky_resolve, cholesky_solve, evaluate, work_views)
+                                   WITH_PHI, WITH_REDUCED, cholesky_resolve, cholesky_solve, evaluate)
 
 FRACTION_TO_BOUNDARY = 0.99
 ARMIJO = 1e-4
@@ -193,14 +193,13 @@ def predict_start(W, Zb, neff, active, g0, g0_prev, dlnp, L, scale, rhs, d, n, x
 
 @kernel
 def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, coupled, tol, max_iter,
-                 wb):
+                 w):
     """Solve the equilibrium conditions in the reduced extents from the start in row F_N (amounts, positive on
     the active species) and ``xi`` (extents matching them; updated in place).
 
     W = nu^T Zb (nc x neff). Returns (status, iterations, outer_iterations, n_T, Z, root); on return the rows
     F_N, F_Y, F_LNPHI and F_MU hold the last iterate, with ln phi evaluated there.
     """
-    w = work_views(wb)
     n = w.n
     y = w.y
     ln_phi = w.ln_phi

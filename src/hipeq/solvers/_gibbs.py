@@ -32,7 +32,7 @@ import math
 
 from hipeq._jit import inline_kernel, kernel
 from hipeq.solvers._common import (CONVERGED, ELEMENT_ATOL, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE,
-                                   SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve, work_views)
+                                   SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve)
 
 LOG_STEP_MAJOR = 2.0  # largest change of ln n_i per iteration for species above TRACE in mole fraction
 TRACE = 1e-3
@@ -199,7 +199,7 @@ def _update(neq, n, n_t, m, kkt_index, kkt_solution, potentials):
 
 @kernel
 def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
-                wb):
+                w):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
 
     The first neq rows of Q are independent rows of the element matrix restricted to the active species (one
@@ -210,7 +210,6 @@ def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, c
     Returns (status, iterations, outer_iterations, n_T, Z, root); rows F_N, F_Y, F_LNPHI, F_MU hold the last
     iterate.
     """
-    w = work_views(wb)
     nc = n0.shape[0]
     total = 0.0
     for e in range(neq):
