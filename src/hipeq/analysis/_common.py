@@ -98,8 +98,10 @@ def model_systems(system: ReactionSystem, choices: Iterable[ModelChoice]) -> dic
 
 def key_product(system: ReactionSystem, n0: np.ndarray, key: str | None = None) -> str:
     """The species whose mole fraction the comparison reports. Default: the first product (positive coefficient)
-    of the system's first reaction that is absent from the feed, else that reaction's first product (NH3 for
-    N2 + 3 H2 = 2 NH3; CH3OH for CO2 + 3 H2 = CH3OH + H2O when listed first). Pass ``key`` to choose."""
+    of the system's first reaction that is absent from the feed (NH3 for N2 + 3 H2 = 2 NH3; CH3OH for
+    CO2 + 3 H2 = CH3OH + H2O when listed first); else the first species in the system's order that is absent from
+    the feed and takes part in a reaction (CO for a steam reformer fed CH4 and H2O with species CH4, H2O, CO,
+    CO2, H2); else the first reaction's first product. Pass ``key`` to choose."""
     if key is not None:
         return system.species_names[system.species_index(key)]
     if not len(system.reactions):
@@ -107,6 +109,9 @@ def key_product(system: ReactionSystem, n0: np.ndarray, key: str | None = None) 
     nu = np.asarray(system.nu)[0]
     products = [j for j in range(nu.size) if nu[j] > 0]
     absent = [j for j in products if n0[j] == 0.0]
+    if not absent:
+        reacting = np.any(np.asarray(system.nu) != 0.0, axis=0)
+        absent = [j for j in range(nu.size) if n0[j] == 0.0 and reacting[j]]
     return system.species_names[(absent or products)[0]]
 
 

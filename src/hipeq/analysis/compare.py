@@ -454,11 +454,13 @@ def _verdict(c: Comparison, ideal: EquilibriumResult, failed: list[str]) -> str:
     if not math.isfinite(lo):
         span = "no real-gas model of the band converged"
     elif len([m for m in c.band_models if math.isfinite(c.y_key[m])]) == 1:
-        span = f"the one real-gas model of the band gives {lo:.3f}"
+        span = f"the one real-gas model of the band gives {lo:.4g}"
     else:
-        span = f"real-gas models span {lo:.3f}-{hi:.3f}"
+        span = f"real-gas models span {lo:.4g}-{hi:.4g}"
     tol = tolerance_words(c.tolerance)
     judged = "not safe" if c.ideal_unsafe else "safe"
-    return (f"{where} the ideal gas gives {c.ideal_y:.3f} {key}, {abs(100.0 * d):.1f} mole-percent points {side} "
-            f"{ref} ({c.y_key[ref]:.3f}); {span}; the ideal-gas estimate is {judged} at a tolerance of {tol}."
+    points = abs(100.0 * d)
+    gap = f"{points:.1f}" if points >= 0.1 else f"{points:.2g}"
+    return (f"{where} the ideal gas gives {c.ideal_y:.4g} {key}, {gap} mole-percent points {side} "
+            f"{ref} ({c.y_key[ref]:.4g}); {span}; the ideal-gas estimate is {judged} at a tolerance of {tol}."
             + excluded)

@@ -87,7 +87,7 @@ def map_figure(m: OperatingMap, *, model: str | None = None, log_pressure: bool 
     if liquid.any():  # where the answer took a liquid-like root: hatched, a liquid may form there
         ax.contourf(T_c, P_bar, liquid.T.astype(float), levels=[0.5, 1.5], colors="none", hatches=["///"])
         ax.contour(T_c, P_bar, liquid.T.astype(float), levels=[0.5], colors="red", linewidths=1.2)
-        ax.plot([], [], color="red", linewidth=1.2, label="hatched: liquid-like root (a liquid may form)")
+        ax.plot([], [], color="red", linewidth=1.2, label="hatched: liquid present or may form")
     if error_panel:
         dev = np.abs(np.asarray(m.y[m.ideal_model]) - np.asarray(m.y[model]))
         dev = np.ma.masked_invalid(100.0 * dev)

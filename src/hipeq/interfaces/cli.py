@@ -30,8 +30,8 @@ from typing import Any, TextIO
 import numpy as np
 
 from hipeq.errors import HipeqError, InputError, UnbalancedReactionError, UnknownSpeciesError
-from hipeq.interfaces.sections import (CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, STANDARD_STATE, Section,
-                                       amount_unit, mark, number)
+from hipeq.interfaces.sections import (CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, MARK_TWO_PHASE, STANDARD_STATE,
+                                       Section, amount_unit, mark, number)
 
 EXIT_OK, EXIT_FAILED_STATE, EXIT_BAD_INPUT = 0, 1, 2
 
@@ -82,6 +82,8 @@ def solve_section(case: Any, system: Any) -> tuple[Section, Any]:
     """The main equilibrium of the case: reactions, species, status."""
     result = _in_case(lambda: system.equilibrium(feed=case.feed, T=case.T, **_conditions(case), **case.solver))
     state_mark = mark(int(result.status), bool(result.liquid_like))
+    if result.status == 0 and result.phase_count == 2:
+        state_mark = MARK_TWO_PHASE
     fixed = f"V = {number(case.V)} m3 (sealed vessel)" if case.V is not None else f"P = {number(case.P / 1e5)} bar"
     section = Section(f"Equilibrium at T = {case.T - 273.15:.2f} degC ({case.T:.2f} K), {fixed}",
                       ["species", "feed [{}]", "equilibrium [{}]", "mole fraction [-]", "phi [-]", "status"])
@@ -133,7 +135,8 @@ def compare_section(case: Any, system: Any) -> Section:
     kwargs["models"] = models
     comparison = _in_case(lambda: hipeq.compare(system, case.feed, case.T, key=case.key, **_conditions(case),
                                                 **kwargs))
-    section = Section(f"Ideal gas against real-gas models (key product {comparison.key})",
+    chosen = "" if case.key else "; chosen by default, set [report] key to choose"
+    section = Section(f"Ideal gas against real-gas models (key product {comparison.key}{chosen})",
                       ["model", f"y {comparison.key} [-]", "deviation [-]", "conversion [-]", "status"])
     for label, result in comparison.results.items():
         ok = result.status == 0
@@ -220,7 +223,7 @@ def map_section(case: Any, system: Any, folder: Path | None) -> Section:
                              number(width, 3) if np.isfinite(width) else "n/a"])
     liquid = {label: int(np.count_nonzero(grid.liquid_like[label])) for label in grid.models}
     if any(liquid.values()):
-        section.notes.append("WARNING: liquid-like volume roots (a liquid may form; the one-gas answer is doubtful) "
+        section.notes.append("WARNING: a liquid is present (two-phase answers) or may form (liquid-like roots) "
                              "in " + ", ".join(f"{count} states of {label}" for label, count in liquid.items()
                                                if count) + "; hatched on the map figure")
     section.notes.append(f"ideal-gas limit: the pressure above which the ideal gas is off by more than "
@@ -305,8 +308,9 @@ def separator_section(case: Any, system: Any, result: Any) -> Section:
 
     spec = case.separator
     T, P = spec["temperature"], spec.get("pressure", case.P)
+    unit, scale = amount_unit(list(result.amounts.array)) if result.status == 0 else ("mol", 1.0)
     section = Section(f"Separator: the equilibrium gas flashed at {T - 273.15:.1f} degC and {number(P / 1e5)} bar "
-                      "(no reaction)", ["species", "feed [mol]", "vapour [-]", "liquid [-]", "K = y/x [-]"])
+                      "(no reaction)", ["species", f"feed [{unit}]", "vapour [-]", "liquid [-]", "K = y/x [-]"])
     if result.status != 0:
         section.notes.append(f"{MARK_FAILED}: the equilibrium upstream did not converge; no flash")
         section.failed = 1
@@ -316,7 +320,7 @@ def separator_section(case: Any, system: Any, result: Any) -> Section:
     vapour = split.phases[0]
     liquid = split.phases[1] if split.phase_count == 2 else None
     for name in case.report_species or system.species_names:
-        section.rows.append([name, number(result.amounts[name]), number(vapour.y[name], 5),
+        section.rows.append([name, number(result.amounts[name] / scale), number(vapour.y[name], 5),
                              number(liquid.y[name], 5) if liquid else "-",
                              number(split.K[name]) if liquid and split.K else "-"])
     if liquid is None:

@@ -9,7 +9,8 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
-from hipeq.interfaces.sections import CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, STANDARD_STATE, Section
+from hipeq.interfaces.sections import (CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, MARK_TWO_PHASE, STANDARD_STATE,
+                                       Section)
 
 TEMPLATE = "report.html.j2"
 
@@ -17,7 +18,7 @@ TEMPLATE = "report.html.j2"
 def _mark_class(cell: str) -> str:
     if cell.startswith(MARK_FAILED):
         return "mark-failed"
-    return "mark-liquid" if cell == MARK_LIQUID else "mark-ok"
+    return "mark-liquid" if cell in (MARK_LIQUID, MARK_TWO_PHASE) else "mark-ok"
 
 
 def _embedded(figures: Sequence[tuple[str, str]]) -> list[dict[str, str]]:
@@ -46,7 +47,8 @@ def render_report(case: Any, result: Any, sections: Sequence[Section]) -> str:
     return env.get_template(TEMPLATE).render(
         title=case.title, version=__version__, generated=_dt.datetime.now().strftime("%Y-%m-%d %H:%M"),
         case_file=case.path or "(none)", standard_state=STANDARD_STATE, notes=case.notes,
-        species=list(case.species), reactions=list(result.reactions), model=result.eos, caution=CAUTION.removeprefix("Caution: "),
+        species=list(case.species), reactions=list(result.reactions), model=result.eos,
+        caution=CAUTION.removeprefix("Caution: "),
         failed=sum(s.failed for s in sections), sections=views, legend=LEGEND,
         data_sources={k: dict(v) for k, v in result.data_sources.items()}, k_source=result.K_source)
 

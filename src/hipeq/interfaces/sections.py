@@ -21,9 +21,12 @@ STANDARD_STATE = "standard state: ideal gas at 1 bar"
 MARK_OK = "ok"
 MARK_FAILED = "FAILED"
 MARK_LIQUID = "liquid-like"
+MARK_TWO_PHASE = "two-phase"
 LEGEND = (f"status: {MARK_OK} = converged, every balance and condition met; {MARK_FAILED} = did not converge "
           f"(values not shown; see the message); {MARK_LIQUID} = converged on a liquid-like volume root of the "
-          "equation of state: the one-gas answer is doubtful (a liquid may form)")
+          f"equation of state: the one-gas answer is doubtful (a liquid may form); {MARK_TWO_PHASE} = converged "
+          "with a vapour and a liquid (reaction and phase equilibrium together; the table shows the overall "
+          "composition)")
 
 
 @dataclass
