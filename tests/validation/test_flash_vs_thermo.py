@@ -35,7 +35,7 @@ def thermo_flasher(names):
     return FlashVL(constants, None, liquid=CEOSLiquid(PRMIX, **kw), gas=CEOSGas(PRMIX, **kw))
 
 
-def compare(names, z, T, P):
+def assert_matches_thermo(names, z, T, P):
     ours = flash(names, z, T, P)
     theirs = thermo_flasher(names).flash(T=T, P=P, zs=list(z))
     where = f"{names} z={z} T={T} P={P:g}"
@@ -59,7 +59,7 @@ def compare(names, z, T, P):
 @pytest.mark.parametrize("T_C", [-5.0, 10.0, 30.0])
 @pytest.mark.parametrize("P_bar", [150.0, 250.0])
 def test_ammonia_separator_matches_thermo(T_C, P_bar):
-    out = compare(AMMONIA, np.array([0.615, 0.205, 0.18]), T_C + 273.15, P_bar * 1e5)
+    out = assert_matches_thermo(AMMONIA, np.array([0.615, 0.205, 0.18]), T_C + 273.15, P_bar * 1e5)
     assert out.phase_count == 2 and out.phases[1].y["NH3"] > 0.9
 
 
@@ -70,7 +70,7 @@ def test_ammonia_separator_matches_thermo(T_C, P_bar):
     (523.15, 80e5, [0.05, 0.03, 0.10, 0.82]),    # converter gas: one phase
 ])
 def test_methanol_water_co2_hydrogen_matches_thermo(T, P, z):
-    compare(METHANOL, np.array(z), T, P)
+    assert_matches_thermo(METHANOL, np.array(z), T, P)
 
 
 def test_bubble_and_dew_points_bracket_the_two_phase_region():
