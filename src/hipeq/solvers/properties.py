@@ -44,8 +44,27 @@ def _frozen(value: Any) -> Any:
     return value
 
 
+class MolarValues:
+    """Per-mole values of a mixture's totals (for classes with ``H``, ``S``, ``U`` and ``n_total``)."""
+
+    @property
+    def h(self) -> Any:
+        """Molar enthalpy H / n [J/mol]."""
+        return self.H / self.n_total
+
+    @property
+    def s(self) -> Any:
+        """Molar entropy S / n [J/(mol K)]."""
+        return self.S / self.n_total
+
+    @property
+    def u(self) -> Any:
+        """Molar internal energy U / n [J/mol]."""
+        return self.U / self.n_total
+
+
 @dataclass(frozen=True, eq=False)
-class MixtureProperties:
+class MixtureProperties(MolarValues):
     """Thermodynamic state of a gas mixture (arrays over the broadcast shape of T, P or V, and the amounts; floats
     for one state).
 
@@ -79,21 +98,6 @@ class MixtureProperties:
     def G(self) -> Any:
         """Gibbs energy G = H - T S [J] (same reference as H and S)."""
         return self.H - self.T * self.S
-
-    @property
-    def h(self) -> Any:
-        """Molar enthalpy H / n [J/mol]."""
-        return self.H / self.n_total
-
-    @property
-    def s(self) -> Any:
-        """Molar entropy S / n [J/(mol K)]."""
-        return self.S / self.n_total
-
-    @property
-    def u(self) -> Any:
-        """Molar internal energy U / n [J/mol]."""
-        return self.U / self.n_total
 
     @property
     def g(self) -> Any:

@@ -42,6 +42,7 @@ from typing import Any
 import numpy as np
 
 from hipeq.constants import R as R_GAS
+from hipeq.solvers.properties import MolarValues
 from hipeq.solvers import _common as C
 from hipeq.solvers import _arrays as A
 from hipeq.solvers._arrays import METHOD_NAMES
@@ -178,7 +179,7 @@ def _jsonable(value: Any) -> Any:
     return value
 
 
-class _Common:
+class _Common(MolarValues):
     """Derived quantities shared by the single-state and batch results."""
 
     _info: _SystemInfo
@@ -325,21 +326,6 @@ class _Common:
         """Total amount of the equilibrium mixture [mol]."""
         total = np.sum(self._amounts, axis=-1)
         return float(total) if np.ndim(total) == 0 else total
-
-    @property
-    def h(self) -> Any:
-        """Molar enthalpy H / n [J/mol]."""
-        return self.H / self.n_total
-
-    @property
-    def s(self) -> Any:
-        """Molar entropy S / n [J/(mol K)]."""
-        return self.S / self.n_total
-
-    @property
-    def u(self) -> Any:
-        """Molar internal energy U / n [J/mol]."""
-        return self.U / self.n_total
 
     @cached_property
     def stability(self) -> Any:
