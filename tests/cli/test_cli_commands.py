@@ -182,3 +182,9 @@ def test_a_failed_compared_model_is_marked_and_sets_the_exit_code(tmp_path):
     assert "FAILED" in row and "0." not in row.split("FAILED")[0]
     assert "did not converge" in done.stdout or "FAILED" in done.stdout
     assert "thermodynamic limit, not a design basis" in done.stdout
+
+
+def test_a_plain_call_shows_the_commands_and_where_to_start():
+    done = hipeq()
+    assert done.returncode == 2
+    assert "hipeq demo" in done.stdout and "separator" in done.stdout

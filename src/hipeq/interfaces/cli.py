@@ -691,7 +691,13 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Entry point of the ``hipeq`` command; returns the exit code."""
-    args = build_parser().parse_args(argv)
+    parser = build_parser()
+    if not (sys.argv[1:] if argv is None else list(argv)):
+        parser.print_help()
+        print("\nStart here: `hipeq demo` runs the two invented demo cases end to end; `hipeq keys` lists what a "
+              "case file may hold.")
+        return EXIT_BAD_INPUT
+    args = parser.parse_args(argv)
     try:
         if args.command in CASE_COMMANDS:
             only = None if args.command == "run" else [args.command]
