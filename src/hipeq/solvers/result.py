@@ -42,7 +42,7 @@ from typing import Any
 import numpy as np
 
 from hipeq.constants import R as R_GAS
-from hipeq.solvers.properties import MolarValues
+from hipeq.solvers.properties import MolarValues, ideal_gas_parts
 from hipeq.solvers import _common as C
 from hipeq.solvers import _arrays as A
 from hipeq.solvers._arrays import METHOD_NAMES
@@ -165,6 +165,15 @@ def _exp(values: np.ndarray) -> np.ndarray:
         return np.exp(np.clip(values, -745.0, 709.0))
 
 
+def _scalars_or_frozen(*arrays: np.ndarray) -> tuple[Any, ...]:
+    """Per-state values as numpy scalars for one state, or as read-only arrays for a batch."""
+    if not arrays[0].ndim:
+        return tuple(a[()] for a in arrays)
+    for a in arrays:
+        a.flags.writeable = False
+    return arrays
+
+
 def _jsonable(value: Any) -> Any:
     if isinstance(value, np.ndarray):
         return value.tolist()
@@ -262,11 +271,7 @@ class _Common(MolarValues):
             same_root = np.abs(np.asarray(states.Z) - Z[ok]) <= 1e-7 * np.maximum(Z[ok], 1e-3)
             h[ok] = np.where(same_root, states.h_res, np.nan)
             s[ok] = np.where(same_root, (states.h_res - R_GAS * T[ok] * states.g_res_RT) / T[ok], np.nan)
-        if not status.ndim:
-            return h[()], s[()]
-        for value in (h, s):
-            value.flags.writeable = False
-        return h, s
+        return _scalars_or_frozen(h, s)
 
     @property
     def h_res(self) -> Any:
@@ -284,8 +289,6 @@ class _Common(MolarValues):
     @cached_property
     def _energy(self) -> tuple[Any, Any]:
         """(H [J], S [J/K]) of the equilibrium mixture, NaN where h_res is NaN (see ``hipeq.solvers.properties``)."""
-        from hipeq.solvers.properties import ideal_gas_parts
-
         h_res, s_res = (np.asarray(v, dtype=float) for v in self._residual)
         H, S = np.full(h_res.shape, np.nan), np.full(h_res.shape, np.nan)
         ok = np.isfinite(h_res)
@@ -296,11 +299,7 @@ class _Common(MolarValues):
             n_tot = np.sum(n, axis=-1)
             H[ok] = H_id + n_tot * h_res[ok]
             S[ok] = S_id + n_tot * s_res[ok]
-        if not h_res.ndim:
-            return H[()], S[()]
-        for value in (H, S):
-            value.flags.writeable = False
-        return H, S
+        return _scalars_or_frozen(H, S)
 
     @property
     def H(self) -> Any:
