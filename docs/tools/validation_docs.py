@@ -12,6 +12,8 @@ place; the prose around it is left alone:
   figures docs/figures/scoring_ammonia_parity.png/.svg and scoring_ammonia_errors.png/.svg.
 * docs/scoring.md, ``k-sources``: ln K of the methanol and ammonia reactions from every K source, and
   ``methanol``: the equilibrium methanol mole fraction each K source gives (SRK, an invented syngas).
+* docs/phases.md, ``vle-co2-water``: the flash and bubble points against measured CO2 + water (Bamberger, Sieder &
+  Maurer 2000), written by docs/tools/vle_table.py from tests/validation/vle_cases.py.
 * docs/eos_validation.md and docs/hydrogen.md (``--eos``): docs/tools/eos_validation_table.py (pure fluids and
   the H2-N2 pair against CoolProp's reference equations; thermo PRMIX/SRKMIX cross-check).
 
@@ -33,6 +35,10 @@ from hipeq.data.ksources import resolve_k_source
 from hipeq.data.thermochem import ln_equilibrium_constants
 
 ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT / "docs" / "tools"))
+
+import vle_table  # noqa: E402  (docs/tools/vle_table.py: the published-VLE table of docs/phases.md)
+
 ATM = 101325.0
 KZ = {("N2", "H2"): 0.0, ("N2", "NH3"): 0.0, ("H2", "NH3"): 0.0}
 BEST = {"eos": "PR78", "kij": "e-ppr78", "volume_translation": "peneloux"}
@@ -153,11 +159,11 @@ def main(argv: list[str] | None = None) -> int:
     same = replace_tables(ROOT / "docs" / "ammonia_validation.md", {"scores": ammonia_block(scores)}, args.check)
     same &= replace_tables(ROOT / "docs" / "scoring.md", {"k-sources": k_source_block(),
                                                           "methanol": methanol_block()}, args.check)
+    same &= replace_tables(vle_table.DOC, {vle_table.BLOCK: vle_table.block()}, args.check)
     if not args.check:
         for p in ammonia_figures(scores, ROOT / "docs" / "figures"):
             print(f"wrote {p.relative_to(ROOT)}")
     if args.eos and not args.check:
-        sys.path.insert(0, str(ROOT / "docs" / "tools"))
         import eos_validation_table
 
         eos_validation_table.main()
