@@ -6,7 +6,7 @@ STAMP   := $(VENV)/.installed
 # numba's cache: hipeq chooses the folder itself and keys it by the kernel sources (src/hipeq/_cache.py), the same
 # folder for make targets and plain runs; nothing to set here (see DEVELOPERS.md, "The compiled-code cache")
 
-.PHONY: test demo bench soak clean browser validation-docs
+.PHONY: test demo bench soak clean browser validation-docs validation-docs-check
 
 $(STAMP): pyproject.toml
 	test -d $(VENV) || $(PY) -m venv $(VENV)
@@ -24,9 +24,14 @@ demo: $(STAMP)
 bench: $(STAMP)
 	$(BIN)/python benchmarks/run.py
 
-# the validation tables and figures of docs/, regenerated through hipeq.score_models (docs/tools/validation_docs.py)
+# every validation table of docs/ and the scoring figures, regenerated from the code (docs/tools/validation_docs.py);
+# -check compares without writing (tests/validation/test_validation_docs.py compares the same blocks, the thermo
+# cross-check table of docs/eos_validation.md with its rounding-level digits masked)
 validation-docs: $(STAMP)
 	$(BIN)/python docs/tools/validation_docs.py --eos
+
+validation-docs-check: $(STAMP)
+	$(BIN)/python docs/tools/validation_docs.py --eos --check
 
 soak: $(STAMP)
 	HYPOTHESIS_PROFILE=soak $(BIN)/python -m pytest -q -n 2 -m soak tests/properties

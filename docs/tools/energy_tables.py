@@ -2,7 +2,8 @@
 
     HIPEQ_QUIET=1 .venv/bin/python docs/tools/energy_tables.py
 
-Tables sit between ``<!-- table: NAME -->`` and ``<!-- end table -->`` and are replaced in place. The residual
+Tables sit between ``<!-- table: NAME -->`` and ``<!-- end table -->`` and are replaced in place
+(docs/tools/doc_blocks.py). The residual
 enthalpy comparison uses tests/validation/residual_enthalpy_cases.py (the bounds printed are the ones the tests
 hold); the converter is the invented demo of the document. Figures: docs/figures/staged_beds.png/.svg (inter-bed
 coolers) and docs/figures/staged_beds_quench.png/.svg.
@@ -10,7 +11,6 @@ coolers) and docs/figures/staged_beds_quench.png/.svg.
 from __future__ import annotations
 
 import platform
-import re
 import sys
 from pathlib import Path
 
@@ -85,22 +85,13 @@ def staged_table() -> str:
     return "\n\n".join(out)
 
 
-def replace(text: str, name: str, table: str) -> str:
-    pattern = re.compile(rf"(<!-- table: {name} -->\n).*?(\n<!-- end table -->)", re.S)
-    if not pattern.search(text):
-        raise SystemExit(f"marker for table {name!r} not found in {DOC}")
-    return pattern.sub(lambda m: m.group(1) + table + m.group(2), text)
-
-
 def main() -> None:
-    FIGURES.mkdir(exist_ok=True)
-    text = DOC.read_text()
-    text = replace(text, "residual-enthalpy", residual_enthalpy_table())
-    text = replace(text, "adiabatic", adiabatic_table())
-    text = replace(text, "staged", staged_table())
-    DOC.write_text(text)
-    print(f"wrote {DOC} and figures in {FIGURES}")
+    from doc_blocks import replace_tables
 
+    FIGURES.mkdir(exist_ok=True)
+    replace_tables(DOC, {"residual-enthalpy": residual_enthalpy_table(), "adiabatic": adiabatic_table(),
+                         "staged": staged_table()})
+    print(f"figures in {FIGURES}")
 
 if __name__ == "__main__":
     main()

@@ -1,16 +1,18 @@
 """Regenerate the tables of docs/eos_validation.md and docs/hydrogen.md.
 
-    NUMBA_CACHE_DIR=.numba_cache .venv/bin/python docs/tools/eos_validation_table.py
+    .venv/bin/python docs/tools/eos_validation_table.py            # every table, the timing table too
+    .venv/bin/python docs/tools/eos_validation_table.py --check    # compare only (no timing)
 
 Each table sits between ``<!-- table: NAME -->`` and ``<!-- end table -->`` in its document and is replaced in
-place; the prose around it is left alone. The numbers come from the same helpers the validation tests use
+place (docs/tools/doc_blocks.py); the prose around it is left alone. ``make validation-docs`` runs it without the
+timing table (docs/tools/validation_docs.py --eos); run this script itself to measure the cost of a call again,
+``--check`` to compare only. The numbers come from the same helpers the validation tests use
 (tests/validation/coolprop_cases.py, tests/validation/thermo_cases.py), and the bounds printed beside them are the
 ones the tests enforce.
 """
 from __future__ import annotations
 
 import platform
-import re
 import sys
 import timeit
 from pathlib import Path
@@ -142,24 +144,30 @@ def timing_table() -> str:
     return "\n".join(lines)
 
 
-def replace_tables(path: Path, tables: dict[str, str]) -> None:
-    text = path.read_text(encoding="utf-8")
-    for name, body in tables.items():
-        pattern = re.compile(rf"(<!-- table: {re.escape(name)} -->\n).*?(<!-- end table -->)", re.S)
-        if not pattern.search(text):
-            raise SystemExit(f"{path}: no block for table {name!r}")
-        text = pattern.sub(lambda m: m.group(1) + body + "\n" + m.group(2), text)
-    path.write_text(text, encoding="utf-8")
-    print(f"updated {path.relative_to(ROOT)}: {', '.join(tables)}")
+def tables(timing: bool = False) -> dict[Path, dict[str, str]]:
+    """The generated blocks of docs/eos_validation.md and docs/hydrogen.md by document; the cost-of-a-call table
+    (``timing``) only when asked: it is a measurement of this machine at this moment, not a validation."""
+    eos = {"coolprop": coolprop_table(), "liquid": liquid_table(), "thermo": thermo_table()}
+    if timing:
+        eos["timing"] = timing_table()
+    return {ROOT / "docs" / "eos_validation.md": eos,
+            ROOT / "docs" / "hydrogen.md": {"hydrogen": hydrogen_table(),
+                                            "hydrogen-enthalpy": hydrogen_enthalpy_table(),
+                                            "mixture": mixture_table()}}
 
 
-def main() -> None:
-    replace_tables(ROOT / "docs" / "eos_validation.md",
-                   {"coolprop": coolprop_table(), "liquid": liquid_table(), "thermo": thermo_table(),
-                    "timing": timing_table()})
-    replace_tables(ROOT / "docs" / "hydrogen.md", {"hydrogen": hydrogen_table(), "hydrogen-enthalpy": hydrogen_enthalpy_table(),
-                                                     "mixture": mixture_table()})
+def main(argv: list[str] | None = None) -> int:
+    import argparse
 
+    from doc_blocks import replace_tables
+
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--check", action="store_true", help="compare only (timing table excluded); exit 1 on a difference")
+    args = ap.parse_args(argv)
+    same = True
+    for path, blocks in tables(timing=not args.check).items():
+        same &= replace_tables(path, blocks, args.check)
+    return 0 if same else 1
 
 if __name__ == "__main__":
-    main()
+    raise SystemExit(main())

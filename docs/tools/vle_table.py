@@ -4,7 +4,7 @@
     .venv/bin/python docs/tools/vle_table.py --check    # exit 1 when the block differs
 
 The block sits between ``<!-- table: vle-co2-water -->`` and ``<!-- end table -->`` in docs/phases.md and is replaced
-in place; the prose around it is left alone. The numbers come from tests/validation/vle_cases.py, the helper that
+in place by docs/tools/doc_blocks.py; the prose around it is left alone. The numbers come from tests/validation/vle_cases.py, the helper that
 tests/validation/test_vle_co2_water.py checks against its bounds (printed here beside the errors). Data: Bamberger,
 Sieder & Maurer (2000), J. Supercrit. Fluids 17, 97-110, the 323 K isotherm, as transcribed in the public
 repository DanWBR/dwsim (see the header of tests/validation/data/vle_co2_water_bamberger_2000.csv).
@@ -26,6 +26,9 @@ ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT / "tests" / "validation"))
 
 import vle_cases as vc  # noqa: E402
+
+sys.path.insert(0, str(ROOT / "docs" / "tools"))
+from doc_blocks import replace_tables  # noqa: E402  (the one marker mechanism)
 
 DOC = ROOT / "docs" / "phases.md"
 BLOCK = "vle-co2-water"
@@ -72,24 +75,11 @@ def block() -> str:
     return "\n".join(out)
 
 
-def replace_block(path: Path, body: str, check: bool = False) -> bool:
-    """Put ``body`` between the block's markers in ``path``; with ``check`` only compare. True when unchanged."""
-    text = path.read_text(encoding="utf-8")
-    pattern = re.compile(rf"(<!-- table: {re.escape(BLOCK)} -->\n).*?(<!-- end table -->)", re.S)
-    if not pattern.search(text):
-        raise SystemExit(f"{path}: no block for table {BLOCK!r}")
-    new = pattern.sub(lambda m: m.group(1) + body + "\n" + m.group(2), text)
-    if not check and new != text:
-        path.write_text(new, encoding="utf-8")
-        print(f"updated {path.relative_to(ROOT)}: {BLOCK}")
-    return new == text
-
-
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--check", action="store_true", help="compare only; exit 1 when the block differs")
     args = ap.parse_args(argv)
-    same = replace_block(DOC, block(), args.check)
+    same = replace_tables(DOC, {BLOCK: block()}, args.check)
     if args.check and not same:
         print("the published-VLE table differs from docs/phases.md: run docs/tools/vle_table.py")
         return 1
