@@ -65,6 +65,7 @@ REASON_LABELS = {
     C.REASON_LEWIS_RANDALL_RANGE: "Lewis-Randall: P > 2e8 Pa",
     C.REASON_NOT_FINITE: "an output not finite",
     C.REASON_ELEMENTS: "an element balance open",
+    C.REASON_TWO_PHASE_NOT_FOUND: "vessel: neither one phase nor a vapour and a liquid fill it",
 }
 STATUS_LABELS = {C.MAX_ITERATIONS: "iteration limit", C.STALLED: "stalled: no descent step",
                  C.NO_PHYSICAL_STATE: "model has no state", C.SINGULAR: "singular Newton system",

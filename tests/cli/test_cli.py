@@ -79,3 +79,33 @@ def test_case_kij_applies_to_its_own_model_and_comparison_still_runs(tmp_path):
     assert set(comparison["models"]) == {"ideal", "SRK", "PR", "PR (case)"}
     assert comparison["models"]["PR (case)"]["y_key [-]"] == pytest.approx(main["result"]["y"]["NH3"], rel=1e-12)
     assert comparison["reference"] == "PR (case)"
+
+
+def test_sealed_vessel_with_a_liquid_is_marked_two_phase(tmp_path):
+    """[conditions] volume for a vessel that no single phase fills (the demo methanol system at 150 degC in 1 L,
+    tests/solvers/test_vessel_two_phase.py): the table marks the state two-phase, the notes give the split and the
+    pressure found, and the caution stays."""
+    case = tmp_path / "vessel.toml"
+    case.write_text("""
+[mixture]
+species = ["CO2", "H2", "CO", "CH3OH", "H2O"]
+reactions = ["CO2 + 3 H2 = CH3OH + H2O", "CO2 + H2 = CO + H2O"]
+[feed]
+CO2 = "1 mol"
+H2 = "3.05 mol"
+CO = "0.04 mol"
+[conditions]
+temperature = "150 degC"
+volume = "1 L"
+""")
+    target = tmp_path / "out.json"
+    code, out, _ = _run("run", str(case), "--json", str(target))
+    assert code == 0
+    rows = [line for line in out.splitlines()
+            if line.split()[:1] in (["CO2"], ["H2"], ["CO"], ["CH3OH"], ["H2O"]) and "=" not in line]
+    assert len(rows) == 5 and all(row.rstrip().endswith("two-phase") for row in rows)
+    assert "sealed vessel" in out and "WARNING: two phases at equilibrium" in out
+    assert CAUTION in out
+    main = next(v for k, v in json.loads(target.read_text())["sections"].items() if k.startswith("Equilibrium"))
+    assert main["status"] == 0 and main["result"]["phase_count"] == 2
+    assert 30e5 < main["result"]["P"] < 40e5

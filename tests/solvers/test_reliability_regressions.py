@@ -328,10 +328,14 @@ def test_1e30_mol_in_one_cubic_metre_is_a_status_not_an_exception() -> None:
 # --------------------------------------------------------------------------------------------------------
 def test_vessel_that_one_phase_cannot_fill_is_explained() -> None:
     s = hipeq.ReactionSystem(AMMONIA_LOOP, eos="PR")
-    r = s.equilibrium(feed={"NH3": 7.07, "Ar": .0022, "CH4": .0095}, T=313.1, V=1.61e-3)
+    feed = {"NH3": 7.07, "Ar": .0022, "CH4": .0095}
+    r = s.equilibrium(feed=feed, T=313.1, V=1.61e-3, phases="one")
     assert r.status != 0 and r.status in DOCUMENTED_FAILURE_CODES
     assert "co-volume" not in r.message, r.message
     assert "one phase" in r.message, r.message
+    # with phases="auto" (the default) a vapour and a liquid fill it (tests/solvers/test_vessel_two_phase.py)
+    auto = s.equilibrium(feed=feed, T=313.1, V=1.61e-3)
+    assert auto.converged and auto.phase_count == 2, auto.message
 
 
 # --------------------------------------------------------------------------------------------------------

@@ -13,6 +13,7 @@ import pytest
 from thermo import CEOSGas, CEOSLiquid, ChemicalConstantsPackage, FlashVL, HeatCapacityGas, PRMIX
 
 import hipeq
+from hipeq.constants import R
 from hipeq.models import _kernels as K
 from hipeq.models import build_model
 from hipeq.models.phases import bubble_point, dew_point, flash
@@ -103,3 +104,20 @@ def test_dew_temperature_at_fixed_pressure():
     assert flash(AMMONIA, y, dew.T * 1.01, 150e5).phase_count == 1
     assert flash(AMMONIA, y, dew.T * 0.99, 150e5).phase_count == 2
     assert dew.T == pytest.approx(thermo_flasher(AMMONIA).flash(P=150e5, VF=1.0, zs=list(y)).T, rel=1e-6)
+
+
+def test_sealed_vessel_with_a_liquid_matches_thermo_at_the_found_pressure():
+    """A sealed vessel that no single phase fills (the demo case's methanol system at 150 degC, 1 L; see
+    tests/solvers/test_vessel_two_phase.py): thermo's flash of the answer's overall composition at the pressure
+    hipeq found gives the same two phases, and their volume sum_p beta_p Z_p n R T / P is the vessel's."""
+    names = ["CO", "CO2", "H2", "CH3OH", "H2O"]
+    system = hipeq.ReactionSystem(names, reactions=["CO2 + 3 H2 = CH3OH + H2O", "CO2 + H2 = CO + H2O"], eos="PR")
+    T, V = 423.15, 1e-3
+    result = system.equilibrium({"CO2": 1.0, "H2": 3.05, "CO": 0.04}, T, V=V)
+    assert result.converged and result.phase_count == 2, result.message
+    ours = assert_matches_thermo(names, result.y.array, T, result.P)
+    theirs = thermo_flasher(names).flash(T=T, P=result.P, zs=list(result.y.array))
+    volume = sum(b * p.Z() for b, p in zip(theirs.betas, theirs.phases)) * result.n_total * R * T / result.P
+    assert volume == pytest.approx(V, rel=1e-7)
+    for mine, phase in zip(result.phases, ours.phases):
+        np.testing.assert_allclose(mine.mole_fractions, phase.mole_fractions, atol=1e-9)

@@ -42,6 +42,8 @@ REASON_VIRIAL_RANGE = 5  # truncated virial with |Z - 1| above its limit
 REASON_LEWIS_RANDALL_RANGE = 6  # Lewis-Randall rule above its pressure limit
 REASON_NOT_FINITE = 7  # an output was not finite
 REASON_ELEMENTS = 8  # an element balance did not close
+REASON_TWO_PHASE_NOT_FOUND = 9  # sealed vessel: no single phase fills V, and no vapour-liquid pair was found that
+# does (set in Python by hipeq.solvers.vessel_phases, phases="auto"; the compiled core never sets it)
 
 MAX_VERTICES = 256  # vertices of a feed's feasible polytope kept per chunk (several_roots_possible)
 

@@ -20,7 +20,7 @@ from hipeq.solvers.two_phase import TwoPhaseAnswer, solve_two_phase
 _LABELS = {K.ROOT_SINGLE: "single", K.ROOT_GAS: "gas-like", K.ROOT_LIQUID: "liquid-like", K.ROOT_INVALID: "none"}
 
 __all__ = ["answer_stability", "unstable_text", "answer_phases", "answer_phase_count", "split_unstable",
-           "PHASE_OPTIONS"]
+           "unstable_states", "two_phase_answer", "PHASE_OPTIONS"]
 
 PHASE_OPTIONS = ("auto", "one")
 
@@ -67,14 +67,27 @@ def _two_phase(result: Any, flat: int | None) -> Any:
     return data.get(0 if flat is None else flat)
 
 
+def two_phase_answer(result: Any, flat: int | None = None) -> TwoPhaseAnswer | None:
+    """The :class:`~hipeq.solvers.two_phase.TwoPhaseAnswer` behind a two-phase result (state ``flat`` of a
+    batch), or None for a one-phase answer."""
+    return _two_phase(result, flat)
+
+
 def unstable_text(result: Any, flat: int | None) -> str:
     """What a message says about phases: "; two phases: ..." for a two-phase answer, "; caution: ..." when a
-    one-phase answer (state ``flat`` of a batch) is not stable as one phase, else ""."""
+    one-phase answer (state ``flat`` of a batch) is not stable as one phase, else "". A sealed vessel's search
+    with a vapour and a liquid adds what stopped it (``_vessel_notes``, :mod:`hipeq.solvers.vessel_phases`)."""
+    note = (result.__dict__.get("_vessel_notes") or {}).get(0 if flat is None else flat)
     answer = _two_phase(result, flat)
     if answer is not None:
         nv, nl = float(answer.vapour.sum()), float(answer.liquid.sum())
-        return (f"; two phases (the one-phase answer failed the stability test): vapour {nv:.6g} mol "
-                f"(Z = {answer.Z_vapour:.4g}), liquid {nl:.6g} mol (Z = {answer.Z_liquid:.4g}); see result.phases")
+        why = ("two phases fill the vessel (no single phase fills it at this density, or the one-phase answer "
+               "failed the stability test)" if result.fixed_volume else
+               "two phases (the one-phase answer failed the stability test)")
+        return (f"; {why}: vapour {nv:.6g} mol (Z = {answer.Z_vapour:.4g}), liquid {nl:.6g} mol "
+                f"(Z = {answer.Z_liquid:.4g}); see result.phases")
+    if note:
+        return "; " + note
     stability = result.stability
     if flat is None:
         stable, tpd, phase = stability.stable, stability.tpd, stability.trial_phase
@@ -173,21 +186,17 @@ def _two_phase_fields(system: Any, answer: TwoPhaseAnswer, n0: np.ndarray, T: fl
                 residuals=residuals, element_res=element_res)
 
 
-def split_unstable(system: Any, result: Any) -> Any:
-    """``phases="auto"``: the result with every converged, fixed-pressure state whose one-phase answer fails the
-    (screened) stability test replaced by its two-phase answer, when that converged and lowered the Gibbs energy.
-    The screen skips states where the cubic has one volume root at every composition of the present species
-    (no vapour-liquid split is possible there). Returns the same object when nothing changed."""
-    import dataclasses
-    import functools
-
-    from hipeq.solvers.result import EquilibriumResult
-
-    if result.fixed_volume or system.model.code != K.MODEL_CUBIC:
-        return result
+def unstable_states(system: Any, result: Any) -> np.ndarray:
+    """Flat indices of the converged states of ``result`` (scalar: index 0) whose one-phase answer fails the
+    screened stability test at its T, P and y (tpd < -STABILITY_TPD_TOL). Only for the cubic; the screen skips
+    states where the cubic has one volume root at every composition of the present species (no vapour-liquid
+    split is possible there)."""
+    none = np.zeros(0, dtype=np.int64)
+    if system.model.code != K.MODEL_CUBIC:
+        return none
     may_split = result._may_split  # the solver's screen: several volume roots possible at T (one flag per state)
     if may_split is False:
-        return result
+        return none
     status = np.asarray(result.status)
     n_states = int(status.size)
     nc = len(system.species_names)
@@ -195,16 +204,37 @@ def split_unstable(system: Any, result: Any) -> Any:
     if may_split is not None and may_split is not True:
         ok &= np.asarray(may_split).reshape(n_states)
     if not np.any(ok):
-        return result
+        return none
     T = np.broadcast_to(np.asarray(result.T, dtype=float), status.shape).reshape(n_states)
     P = np.broadcast_to(np.asarray(result.P, dtype=float), status.shape).reshape(n_states)
     Y = np.asarray(result._y, dtype=float).reshape(n_states, nc)
     Yok = np.array(Y[ok])
     Yok /= Yok.sum(axis=1, keepdims=True)
     _, floats, _ = run_states(system.model, T[ok], P[ok], Yok, screen=True)
-    unstable = np.flatnonzero(ok)[floats[:, S.F_TPD] < -S.STABILITY_TPD_TOL]
+    return np.flatnonzero(ok)[floats[:, S.F_TPD] < -S.STABILITY_TPD_TOL]
+
+
+def split_unstable(system: Any, result: Any, unstable: np.ndarray | None = None) -> Any:
+    """``phases="auto"``: the result with every converged, fixed-pressure state whose one-phase answer fails the
+    (screened) stability test (:func:`unstable_states`, or the flat indices ``unstable`` when the caller has
+    them) replaced by its two-phase answer, when that converged and lowered the Gibbs energy. Returns the same
+    object when nothing changed."""
+    import dataclasses
+    import functools
+
+    from hipeq.solvers.result import EquilibriumResult
+
+    if result.fixed_volume or system.model.code != K.MODEL_CUBIC:
+        return result
+    if unstable is None:
+        unstable = unstable_states(system, result)
     if unstable.size == 0:
         return result
+    status = np.asarray(result.status)
+    n_states = int(status.size)
+    nc = len(system.species_names)
+    T = np.broadcast_to(np.asarray(result.T, dtype=float), status.shape).reshape(n_states)
+    P = np.broadcast_to(np.asarray(result.P, dtype=float), status.shape).reshape(n_states)
     amounts = np.asarray(result._amounts, dtype=float).reshape(n_states, nc)
     feed = np.asarray(result._feed, dtype=float).reshape(n_states, nc)
     ln_k = np.asarray(result._ln_k, dtype=float).reshape(n_states, -1)

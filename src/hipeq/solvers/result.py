@@ -16,7 +16,8 @@ code  name                   meaning
 3     NO_PHYSICAL_STATE      the fugacity model has no physical state (e.g. truncated virial, high P)
 4     SINGULAR               the Newton system was singular, or an output was not finite
 5     PRESSURE_NOT_FOUND     sealed vessel: no pressure between 1e-2 and 1e10 Pa gives the volume as one
-                             phase (the message says why: co-volume, a pressure limit, or no single phase)
+                             phase (the message says why: co-volume, a pressure limit, or no single phase;
+                             with ``phases="auto"``, no vapour-liquid pair either: reason 9)
 6     INVALID_INPUT          batch only: this state's input is out of range (see ``message(i)``)
 7     OUTSIDE_MODEL_RANGE    converged, but where the model does not apply (virial |Z - 1| > 0.5,
                              Lewis-Randall rule above 2e8 Pa)
@@ -96,6 +97,9 @@ REASON_TEXTS = {
     C.REASON_NOT_FINITE: "an output was not finite",
     C.REASON_ELEMENTS: f"an element balance is off by more than {ELEMENT_RTOL:g} of its feed amount (floor "
                        f"{ELEMENT_ATOL:g} of the total feed atoms)",
+    C.REASON_TWO_PHASE_NOT_FOUND: "no single phase fills the vessel at this density, and the search for the "
+                                  "pressure at which a vapour and a liquid at equilibrium fill it together "
+                                  "did not close either",
 }
 ROOT_NAMES = {-1: "none", 0: "single", 1: "gas-like", 2: "liquid-like"}
 

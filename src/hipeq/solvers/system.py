@@ -15,7 +15,9 @@ Formulations (details in docs/solvers.md):
 - ``method="gibbs"``: minimisation of G over the species list with element balances (element potentials:
   White, Johnson & Dantzig 1958, J. Chem. Phys. 28, 751; Smith & Missen 1982, ch. 6; Michelsen & Mollerup 2007,
   ch. 12 for the non-ideal part). Needs no reactions.
-- ``V=`` instead of ``P=``: sealed vessel; the pressure is found so that n_T Z R T / P = V.
+- ``V=`` instead of ``P=``: sealed vessel; the pressure is found so that n_T Z R T / P = V, or, where no single
+  phase fills the vessel, so that a vapour and a liquid at equilibrium fill it together (``phases="auto"``,
+  :mod:`hipeq.solvers.vessel_phases`; at fixed T and V the equilibrium is the minimum of A = G - P V).
 
 Equilibrium is a thermodynamic limit, not a design basis for pressure equipment; follow local codes and
 licensed engineering practice.
@@ -290,9 +292,13 @@ class ReactionSystem:
                 stability as one phase (tangent-plane distance, Michelsen 1982; skipped where the cubic has one
                 volume root at every composition of the species present, so no liquid can form) and, when
                 unstable, solved again as a vapour and a liquid in equilibrium with each other and with every
-                reaction (``result.phases``, ``result.phase_count``; :mod:`hipeq.solvers.two_phase`). "one":
-                one phase only, as the equation of state's root gives it (``result.stability`` still tells
-                whether it would split). Cost in docs/phases.md.
+                reaction (``result.phases``, ``result.phase_count``; :mod:`hipeq.solvers.two_phase`). In a
+                sealed vessel (``V=``), a state that no single phase can fill (status 5, reason 4) or whose
+                one-phase answer is unstable is solved for the pressure P at which the vapour and the liquid at
+                equilibrium fill it together, V_vapour + V_liquid = V (a bracketed search on ln P over the
+                fixed-pressure solves; the lower Helmholtz energy A = G - P V decides at fixed T and V;
+                :mod:`hipeq.solvers.vessel_phases`). "one": one phase only, as the equation of state's root gives
+                it (``result.stability`` still tells whether it would split). Cost in docs/phases.md.
 
         The conditions solved are sum_i nu_ki [g0_i + ln(P/P0) + ln y_i + ln phi_i] = 0 for every independent
         reaction k (extent) or the equivalent element-potential conditions (gibbs), P0 = 1 bar (Smith & Missen
@@ -418,6 +424,11 @@ class ReactionSystem:
             from hipeq.solvers.phase_results import split_unstable
 
             result = split_unstable(self, result)
+        elif phases == "auto" and fixed_volume:
+            from hipeq.solvers.vessel_phases import fill_vessels
+
+            result = fill_vessels(self, result, value, method=method, scheme=scheme, tol=tol,
+                                  max_iterations=max_iterations)
         if result.status != 0 and raise_on_failure:
             raise NotConvergedError(result.message, result)
         return result
@@ -465,6 +476,11 @@ class ReactionSystem:
             from hipeq.solvers.phase_results import split_unstable
 
             result = split_unstable(self, result)
+        elif phases == "auto":
+            from hipeq.solvers.vessel_phases import fill_vessels
+
+            result = fill_vessels(self, result, value_si, method=method, scheme=scheme, tol=tol,
+                                  max_iterations=max_iterations)
         return result
 
     def mixture_properties(self, amounts: Any, T: Any, P: Any = None, V: Any = None) -> MixtureProperties:
