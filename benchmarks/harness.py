@@ -68,6 +68,18 @@ def timings(fn: Callable[[], Any], repeat: int, number: int = 1) -> dict[str, fl
     return {"wall": best_wall / number, "cpu": best_cpu / number}
 
 
+def median_time(fn: Callable[[], Any], calls: int) -> float:
+    """Median wall time [s] of ``calls`` single calls of ``fn`` (``time.perf_counter`` around each call): what a
+    loop in a user's program sees per call, including the occasional slow one that a best-of figure hides."""
+    times = []
+    for _ in range(calls):
+        t0 = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t0)
+    times.sort()
+    return times[len(times) // 2]
+
+
 def best_time(fn: Callable[[], Any], repeat: int, number: int = 1, clock: str = "wall") -> float:
     """Lowest time per call [s] of ``fn`` on ``clock`` ("wall" or "cpu", see :func:`timings`)."""
     return timings(fn, repeat, number)[clock]

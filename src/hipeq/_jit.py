@@ -59,3 +59,51 @@ def threaded_entry(fn: F) -> F:
     (``hipeq.solvers._driver.solve_many``). Unlike :func:`parallel_entry` it compiles its callees only once more
     (numba's parallel lowering builds a kernel and a wrapper that each recompile everything they call)."""
     return njit(cache=True, nogil=True, error_model=ERROR_MODEL)(fn)
+
+
+class DirectCall:
+    """A call site of one compiled function whose argument *types* are fixed by a few long-lived objects (the
+    ``keys``): the machine code found for them is then called directly, without the dispatcher's typing of every
+    argument on every call.
+
+    numba's dispatcher types each argument of each call to choose the compiled version (numba's reference,
+    "Dispatcher objects"); for the scalar solver's named tuples of arrays that was about 5 us of a ~20 us call
+    (benchmarks/bench_profile.py, docs/performance.md). Here the first call for a set of keys goes through the
+    dispatcher (compiling if needed), the version it chose is looked up from the same argument types
+    (``dispatcher.typeof_pyval``, ``dispatcher.overloads``) and kept; later calls with the *same key objects*
+    (identity, not equality) call it directly.
+
+    Contract of the call site: every argument's numba type follows from the keys (the other arguments are the
+    call site's own buffers of fixed dtype, dimension and layout). A direct call skips numba's type check, so an
+    argument of another type would be read with the wrong layout; tests/solvers/test_direct_call.py checks the
+    scalar path's argument types over its options. Without the JIT (``NUMBA_DISABLE_JIT=1``) or with a numba
+    without these attributes, every call goes through the plain function."""
+
+    def __init__(self, dispatcher: Callable[..., Any], capacity: int = 64) -> None:
+        self._dispatcher = dispatcher
+        self._direct = hasattr(dispatcher, "overloads") and hasattr(dispatcher, "typeof_pyval")
+        self._entries: dict[tuple[int, ...], tuple[tuple[Any, ...], Callable[..., Any]]] = {}
+        self._capacity = capacity
+
+    def __call__(self, keys: tuple[Any, ...], *args: Any) -> Any:
+        # an entry holds its key objects, so while it exists no other object can have their ids: equal ids are
+        # the same objects
+        found = self._entries.get(tuple(map(id, keys))) if self._direct else None
+        if found is not None:
+            return found[1](*args)
+        result = self._dispatcher(*args)
+        if self._direct:
+            self._remember(keys, args)
+        return result
+
+    def signature(self, args: tuple[Any, ...]) -> tuple[Any, ...]:
+        """The numba types of ``args``, as the dispatcher types them to choose a compiled version."""
+        return tuple(self._dispatcher.typeof_pyval(a) for a in args)
+
+    def _remember(self, keys: tuple[Any, ...], args: tuple[Any, ...]) -> None:
+        compiled = self._dispatcher.overloads.get(self.signature(args))
+        if compiled is None:
+            return
+        entries = dict(self._entries) if len(self._entries) < self._capacity else {}
+        entries[tuple(map(id, keys))] = (tuple(keys), compiled.entry_point)
+        self._entries = entries  # replaced whole: a reader on another thread sees the old or the new dict

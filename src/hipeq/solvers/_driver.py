@@ -41,7 +41,7 @@ from concurrent.futures import ThreadPoolExecutor
 import numba
 import numpy as np
 
-from hipeq._jit import inline_kernel, kernel, threaded_entry
+from hipeq._jit import DirectCall, inline_kernel, kernel, threaded_entry
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
 from hipeq.models.inputs import P_MAX
@@ -634,8 +634,8 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else no_guess
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
-    _solve_chunk(system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, rows, ints_one,
-                 work)
+    _solve_chunk_direct((system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses,
+                        one_valid, opts, rows, ints_one, work)
 
 
 _scalar = threading.local()
@@ -700,6 +700,12 @@ def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, o
                            w, row, ints[k])
         last_T = T[k]
         last_pat = pat
+
+
+# the scalar path's call of _solve_chunk: the argument types follow from the system's arrays and the pattern
+# snapshot (everything else is solve_one's own buffers and an Options), so the compiled version is looked up once
+# per (system, snapshot) instead of being chosen by typing every argument on every call (hipeq._jit.DirectCall)
+_solve_chunk_direct = DirectCall(_solve_chunk)
 
 
 def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV: np.ndarray, N0: np.ndarray,

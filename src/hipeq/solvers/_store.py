@@ -76,6 +76,16 @@ class PatternStore:
         assert snapshot.arrays is not None
         return snapshot.arrays, [snapshot.ids[k] for k in keys], snapshot.patterns
 
+    def lookup_one(self, key: int) -> tuple[PatternArrays, int, Pattern]:
+        """:meth:`lookup` for one key (the scalar path): the stacked arrays, the key's id and its pattern, from
+        one snapshot."""
+        snapshot = self._snapshot  # one atomic read
+        i = snapshot.ids.get(key)
+        if i is None:
+            arrays, (i,), patterns = self.lookup((key,))
+            return arrays, i, patterns[i]
+        return snapshot.arrays, i, snapshot.patterns[i]
+
     @property
     def keys(self) -> tuple[int, ...]:
         """Keys of the patterns analysed so far, in the order they were added."""
@@ -104,6 +114,10 @@ class CompiledSystem:
         """Arrays of every pattern known after ``keys`` were registered, the id of each key, and the patterns
         (one consistent snapshot; see :meth:`PatternStore.lookup`)."""
         return self.store.lookup(keys)
+
+    def pattern_for(self, key: int) -> tuple[PatternArrays, int, Pattern]:
+        """``patterns_for`` for one feed key: the arrays of every pattern known, the key's id and its pattern."""
+        return self.store.lookup_one(key)
 
 
 class SolveContext(NamedTuple):

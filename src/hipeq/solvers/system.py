@@ -315,8 +315,9 @@ class ReactionSystem:
         value_si = to_si(value, "volume" if fixed_volume else "pressure", "V" if fixed_volume else "P")
         scalar = type(T_si) is float and type(value_si) is float
         if scalar and isinstance(feed, Mapping):
-            feed = {name: feed_amount(name, amount) for name, amount in feed.items()}
-            scalar = all(type(v) is float for v in feed.values())
+            if not all(type(v) is float for v in feed.values()):  # (plain floats are SI amounts already)
+                feed = {name: feed_amount(name, amount) for name, amount in feed.items()}
+                scalar = all(type(v) is float for v in feed.values())
         elif scalar:
             scalar = np.ndim(feed) == 1
         if not scalar:
@@ -351,6 +352,7 @@ class ReactionSystem:
                 raise InputError("feed", "is empty; give at least one species with a positive amount [mol]")
             amounts = [0.0] * nc
             index = self._index
+            key = 0
             for name, amount in feed.items():
                 j = index.get(name)
                 if j is None:
@@ -359,6 +361,8 @@ class ReactionSystem:
                 if not (0.0 <= v < math.inf):
                     raise InputError("feed", f"amount of {name!r} must be finite and >= 0 mol, got {amount!r}")
                 amounts[j] += v
+                if v > 0.0:
+                    key |= 1 << j
             n0 = np.array(amounts)
         else:
             arr = to_si(feed, "amount", "feed")
@@ -368,11 +372,7 @@ class ReactionSystem:
             if not (np.all(np.isfinite(arr)) and np.all(arr >= 0.0)):
                 raise InputError("feed", f"amounts must be finite and >= 0 mol, got {np.asarray(arr).tolist()}")
             n0 = np.array(arr, dtype=float)
-            amounts = n0.tolist()
-        key = 0
-        for j, v in enumerate(amounts):
-            if v > 0.0:
-                key |= 1 << j
+            key = sum(1 << j for j, v in enumerate(n0.tolist()) if v > 0.0)
         if key == 0:
             raise InputError("feed", "all amounts are zero; give at least one positive amount [mol]")
         return n0, key
@@ -404,8 +404,8 @@ class ReactionSystem:
         elif not (0.0 < value <= P_MAX):
             raise InputError("P", f"must be finite, > 0 Pa and <= {P_MAX:g} Pa, got {value!r}")
         n0, key = self._feed_vector(feed)
-        patterns, (pat,), known = self.compiled.patterns_for((key,))  # one snapshot for this solve
-        guess = self._guess(initial_guess, n0, method)
+        patterns, pat, pattern = self.compiled.pattern_for(key)  # one snapshot for this solve
+        guess = None if initial_guess is None else self._guess(initial_guess, n0, method)
         options = self._opts(method, scheme, tol, max_iterations, fixed_volume, guess is not None)
         ln_k_user = _EMPTY
         if self._ln_K is not None:
@@ -419,8 +419,9 @@ class ReactionSystem:
         D.solve_one(self.compiled.arrays, patterns, T, value, n0, pat, ln_k_user,
                     _EMPTY if guess is None else guess, options, row, ints)
         result = scalar_result(self._info, layout, row, ints, T, n0, method, scheme, fixed_volume,
-                               self._frozen(known[pat], method))
-        if phases == "auto" and result.status == 0 and not fixed_volume:
+                               self._frozen(pattern, method))
+        if phases == "auto" and result.status == 0 and not fixed_volume and result._may_split:
+            # (without the solver's flag no vapour-liquid split is possible at this T: nothing to test)
             from hipeq.solvers.phase_results import split_unstable
 
             result = split_unstable(self, result)
