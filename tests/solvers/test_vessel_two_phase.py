@@ -85,6 +85,9 @@ def test_vessel_that_no_single_phase_fills_is_solved_with_the_liquid(system):
     assert liquid.y["CH3OH"] + liquid.y["H2O"] > 0.9  # the condensate is methanol and water
     assert 30e5 < result.P < 40e5  # between the reactive dew and bubble pressures of this feed at 150 degC
     assert "two phases fill the vessel" in result.message
+    # its energies are those of its two phases (issue 12; checked from scratch in test_phase_energies.py)
+    assert np.all(np.isfinite([result.H, result.S, result.U, result.h_res, result.s_res]))
+    assert result.H == pytest.approx(sum(p.amount * p.h for p in result.phases), rel=1e-12)
     # the found pressure fed back into a fixed-T, P solve gives the same phases
     again = system.equilibrium(FEED, T, P=result.P)
     assert again.phase_count == 2

@@ -20,9 +20,11 @@ from __future__ import annotations
 import functools
 import math
 from collections.abc import Sequence
+from typing import Any
 
 import numpy as np
 import numpy.typing as npt
+from scipy.special import xlogy
 
 from hipeq.data.heat_capacity import check_temperature
 from hipeq.data.reactions import Reaction, as_reaction, stoichiometric_matrix
@@ -31,7 +33,7 @@ from hipeq.errors import InputError
 
 __all__ = ["P_STANDARD", "R", "T_REFERENCE", "standard_enthalpies", "standard_entropies", "standard_gibbs",
            "reaction_enthalpy", "reaction_entropy", "reaction_gibbs", "equilibrium_constant",
-           "ln_equilibrium_constant", "ln_equilibrium_constants", "METHODS", "standard_state_table"]
+           "ln_equilibrium_constant", "ln_equilibrium_constants", "METHODS", "standard_state_table", "ideal_gas_parts"]
 
 from hipeq.constants import P_STANDARD, R  # standard state: ideal gas at 1 bar
 METHODS = ("cp-integral", "van-t-hoff")
@@ -232,3 +234,21 @@ def ln_equilibrium_constants(reactions: Sequence[Reaction | str], species: Speci
     H, S = _profiles(involved, arr, extrapolate)
     nu_used = nu[:, np.any(nu != 0.0, axis=0)]
     return -((H - arr[..., None] * S) @ nu_used.T) / (R * arr[..., None])
+
+
+def ideal_gas_parts(records: Sequence[Species], T: Any, amounts: np.ndarray, P: Any) -> tuple[Any, Any]:
+    """Ideal-gas mixture enthalpy [J] and entropy [J/K]: sum_i n_i H0_i(T) and
+    sum_i n_i [S0_i(T) - R ln(y_i P/P0)] (y_i ln y_i -> 0 for absent species; Smith, Van Ness & Abbott 2005,
+    sec. 11.4, the ideal-gas mixture). T [K], amounts [mol] (species on the last axis, broadcast with T and P),
+    P [Pa]. Raises InputError("T") outside the species' Cp ranges. Used for a one-phase mixture
+    (:mod:`hipeq.solvers.properties`) and for each phase of a split at its own composition
+    (:class:`hipeq.models.phases.Phase`)."""
+    T = np.asarray(T, dtype=float)
+    amounts = np.asarray(amounts, dtype=float)
+    H0 = standard_enthalpies(records, T)
+    S0 = standard_entropies(records, T)
+    n = amounts.sum(axis=-1)
+    H = np.sum(amounts * H0, axis=-1)
+    mixing = np.sum(xlogy(amounts, amounts), axis=-1) - xlogy(n, n)  # sum_i n_i ln y_i
+    S = np.sum(amounts * S0, axis=-1) - R * (mixing + n * np.log(np.asarray(P, dtype=float) / P_STANDARD))
+    return H, S

@@ -19,14 +19,16 @@ ch. 10-11):
    with J_ij = n d ln phi_i / d n_j, and a line search on G; it ends when every |ln f_i^V - ln f_i^L| < 1e-12.
 
 Each phase takes the volume root of lower Gibbs energy at its own composition. The vapour is the phase of larger
-molar volume. Only the cubic models (and the virial, which never splits in practice) can split: for the ideal gas
-and the Lewis-Randall rule every mixture is one phase.
+molar volume. Each phase carries its molar enthalpy and entropy (:func:`phase_energies`): the ideal-gas part at its
+own composition plus the model's residual part at its own volume root. Only the cubic models (and the virial, which
+never splits in practice) can split: for the ideal gas and the Lewis-Randall rule every mixture is one phase.
 
 Equilibrium is a thermodynamic limit, not a design basis for pressure equipment; follow local codes and licensed
 engineering practice.
 """
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
@@ -37,6 +39,8 @@ import numpy as np
 
 from hipeq.constants import R
 from hipeq.data.species import Species
+from hipeq.data.species import species as lookup_species
+from hipeq.data.thermochem import ideal_gas_parts
 from hipeq.errors import InputError
 from hipeq.models import _kernels as K
 from hipeq.models.eos import CompiledModel, build_model
@@ -45,11 +49,13 @@ from hipeq.models.stability import StabilityResult, model_stability
 from hipeq.units import to_si
 
 __all__ = ["Phase", "PhaseSplit", "flash", "model_flash", "bubble_point", "dew_point", "SaturationPoint",
-           "FUGACITY_TOL"]
+           "phase_energies", "FUGACITY_TOL", "ROOT_RTOL"]
 
 FUGACITY_TOL = 1e-12  # |ln f_i^V - ln f_i^L| at convergence of the flash
 SS_ITERATIONS = 12
 NEWTON_ITERATIONS = 60
+NEWTON_SATURATION = 100  # Newton steps on ln P (or ln T) of a bubble or dew point
+ROOT_RTOL = 1e-7  # a phase's residual properties are used only where the model's root at its composition has its Z
 
 
 @dataclass(frozen=True, eq=False)
@@ -57,7 +63,15 @@ class Phase:
     """One phase at T, P: ``name`` ("vapour", "liquid", or "gas" when alone), ``fraction`` [-] of the total
     moles, ``amount`` [mol], ``amounts`` [mol] and ``y`` [-] per species (mappings), ``Z`` [-],
     ``molar_volume`` [m3/mol], ``phi`` and ``ln_phi`` per species, ``root`` (the volume root: "single",
-    "gas-like" or "liquid-like"), ``liquid_like`` (that root is the smaller of three, or v/b < 1.75)."""
+    "gas-like" or "liquid-like"), ``liquid_like`` (that root is the smaller of three, or v/b < 1.75).
+
+    Energies of the phase (:func:`phase_energies`): ``h_res`` [J/mol] and ``s_res`` [J/(mol K)], the residual
+    enthalpy and entropy of the model at T, P, the phase's composition and its own volume root; ``h`` [J/mol] and
+    ``s`` [J/(mol K)], its molar enthalpy and entropy, h = sum_i x_i H0_i(T) + h_res and
+    s = sum_i x_i [S0_i(T) - R ln(x_i P/P0)] + s_res (enthalpy relative to the elements at 298.15 K, ideal gas;
+    absolute entropy; standard state ideal gas at P0 = 1 bar). NaN where they are not known: h and s outside the
+    species' heat-capacity ranges or without the species records, all four for an equilibrium answer that did not
+    converge."""
 
     name: str
     fraction: float
@@ -69,6 +83,10 @@ class Phase:
     molar_volume: float
     root: str
     liquid_like: bool
+    h_res: float = math.nan
+    s_res: float = math.nan
+    h: float = math.nan
+    s: float = math.nan
 
     def __post_init__(self) -> None:
         for value in (self.mole_fractions, self.ln_phis):
@@ -95,14 +113,57 @@ class Phase:
         return MappingProxyType({n: float(v) for n, v in zip(self.species, self.ln_phis)})
 
     def to_dict(self) -> dict[str, Any]:
-        """Plain Python values."""
+        """Plain Python values, with the units of the numbers under ``units``."""
         return {"name": self.name, "fraction": self.fraction, "amount": self.amount, "y": dict(self.y),
                 "phi": dict(self.phi), "Z": self.Z, "molar_volume": self.molar_volume, "root": self.root,
-                "liquid_like": self.liquid_like}
+                "liquid_like": self.liquid_like, "h_res": self.h_res, "s_res": self.s_res, "h": self.h,
+                "s": self.s, "units": dict(PHASE_UNITS)}
 
     def __repr__(self) -> str:
         ys = ", ".join(f"{n}={v:.4g}" for n, v in self.y.items())
         return f"Phase({self.name}, fraction={self.fraction:.6g}, Z={self.Z:.5g}, y: {ys})"
+
+
+PHASE_UNITS = MappingProxyType({"fraction": "-", "amount": "mol", "y": "-", "phi": "-", "Z": "-",
+                                "molar_volume": "m3/mol", "h_res": "J/mol", "s_res": "J/(mol K)",
+                                "h": "J/mol (relative to the elements at 298.15 K, ideal gas)",
+                                "s": "J/(mol K) (absolute; standard state ideal gas at 1 bar)"})
+
+
+def phase_energies(model: CompiledModel, records: Sequence[Species] | None, T: float, P: float,
+                   amounts: np.ndarray, Z: float) -> tuple[float, float, float, float]:
+    """(h_res [J/mol], s_res [J/(mol K)], H [J], S [J/K]) of one phase of ``amounts`` [mol] (species in the model's
+    order) at T [K], P [Pa] whose volume root has compressibility ``Z`` [-]:
+
+        h_res = -R T^2 d(g_res/RT)/dT,   s_res = (h_res - g_res)/T        (Michelsen & Mollerup 2007, ch. 2)
+        H = sum_i n_i H0_i(T) + n h_res,  S = sum_i n_i [S0_i(T) - R ln(x_i P/P0)] + n s_res
+
+    with H0_i, S0_i of :mod:`hipeq.data.thermochem` (Smith, Van Ness & Abbott 2005, sec. 4.3, 5.5, 6.3), x_i the
+    phase's mole fractions, P0 = 1 bar: the one-phase mixture's equations (:mod:`hipeq.solvers.properties`) applied
+    to the phase alone. The residual part comes from ``model.fugacity_coefficients`` at the phase's composition,
+    which takes the root of lower Gibbs energy there, as each phase of a split does; it is used only where that
+    root's Z agrees with ``Z`` to ROOT_RTOL (else all four are NaN). H and S are NaN without ``records`` (the
+    species records in the model's order) or outside their heat-capacity ranges."""
+    n = np.asarray(amounts, dtype=float)
+    total = float(n.sum())
+    nan = (math.nan, math.nan, math.nan, math.nan)
+    if not (total > 0.0 and math.isfinite(total)):
+        return nan
+    try:
+        state = model.fugacity_coefficients(T, P, n / total)
+    except InputError:
+        return nan
+    if not abs(float(state.Z) - Z) <= ROOT_RTOL * max(abs(Z), 1e-3):
+        return nan
+    h_res = float(state.h_res)
+    s_res = (h_res - R * T * float(state.g_res_RT)) / T
+    if records is None:
+        return h_res, s_res, math.nan, math.nan
+    try:
+        H_id, S_id = ideal_gas_parts(records, T, n, P)
+    except InputError:
+        return h_res, s_res, math.nan, math.nan
+    return h_res, s_res, float(H_id) + total * h_res, float(S_id) + total * s_res
 
 
 @dataclass(frozen=True, eq=False)
@@ -112,7 +173,8 @@ class PhaseSplit:
     ``K`` (y_i / x_i per species for two phases, else None), ``stability`` (the test of the feed),
     ``converged``, ``iterations``, ``max_fugacity_residual`` (max_i |ln f_i^V - ln f_i^L|), ``G_RT`` (residual plus
     mixing Gibbs energy of the split over R T per mole of feed, sum over phases of
-    n_p sum_i x_i (ln x_i + ln phi_i), [-]), ``model`` (eos, k_ij)."""
+    n_p sum_i x_i (ln x_i + ln phi_i), [-]), ``model`` (eos, k_ij); ``H`` [J] and ``S`` [J/K], the totals over the
+    phases of ``total`` moles of feed (sum_p n_p h_p, sum_p n_p s_p; NaN where a phase's h or s is)."""
 
     T: float
     P: float
@@ -153,13 +215,26 @@ class PhaseSplit:
         """Model name."""
         return self.model.eos
 
+    @property
+    def H(self) -> float:
+        """Enthalpy of the whole split [J], sum over the phases of n_p h_p (relative to the elements at 298.15 K)."""
+        return float(sum(p.amount * p.h for p in self.phases))
+
+    @property
+    def S(self) -> float:
+        """Entropy of the whole split [J/K], sum over the phases of n_p s_p."""
+        return float(sum(p.amount * p.s for p in self.phases))
+
     def to_dict(self) -> dict[str, Any]:
         """Plain Python values."""
         return {"T": self.T, "P": self.P, "phase_count": self.phase_count, "vapour_fraction": self.vapour_fraction,
                 "phases": [p.to_dict() for p in self.phases], "converged": self.converged,
                 "iterations": self.iterations, "max_fugacity_residual": self.max_fugacity_residual,
-                "G_RT": self.G_RT, "eos": self.eos, "stability": self.stability.to_dict(),
-                "units": {"T": "K", "P": "Pa", "amount": "mol", "molar_volume": "m3/mol"}}
+                "G_RT": self.G_RT, "H": self.H, "S": self.S, "eos": self.eos,
+                "stability": self.stability.to_dict(),
+                "units": {"T": "K", "P": "Pa", "amount": "mol", "molar_volume": "m3/mol",
+                          "H": "J (relative to the elements at 298.15 K, ideal gas)", "S": "J/K",
+                          "h_res": "J/mol", "s_res": "J/(mol K)", "h": "J/mol", "s": "J/(mol K)"}}
 
     def __repr__(self) -> str:
         inner = "; ".join(repr(p) for p in self.phases)
@@ -326,12 +401,15 @@ def _split(m: _ModelAtT, P: float, z: np.ndarray, lnk: np.ndarray) -> tuple[bool
 
 
 def _phase(m: _ModelAtT, P: float, name: str, fraction: float, total: float, y: np.ndarray,
-           species: tuple[str, ...]) -> Phase:
+           species: tuple[str, ...], records: Sequence[Species] | None) -> Phase:
     lnphi, z, root = m.ln_phi(P, y)
     labels = {K.ROOT_SINGLE: "single", K.ROOT_GAS: "gas-like", K.ROOT_LIQUID: "liquid-like"}
     liquid = m.liquid_like(P, y, z, root)
-    return Phase(name, float(fraction), float(fraction * total), species, np.array(y, dtype=float), lnphi,
-                 float(z), float(z * R * m.T / P), "liquid-like" if liquid else labels.get(root, "none"), liquid)
+    x = np.array(y, dtype=float)
+    h_res, s_res, H, S = phase_energies(m.model, records, m.T, P, x, float(z))  # per mole of x (sum x = 1)
+    return Phase(name, float(fraction), float(fraction * total), species, x, lnphi, float(z),
+                 float(z * R * m.T / P), "liquid-like" if liquid else labels.get(root, "none"), liquid, h_res, s_res,
+                 H / float(x.sum()), S / float(x.sum()))
 
 
 def _feed_vector(model: CompiledModel, feed: Any) -> np.ndarray:
@@ -353,8 +431,10 @@ def _feed_vector(model: CompiledModel, feed: Any) -> np.ndarray:
     return n0
 
 
-def model_flash(model: CompiledModel, feed: Any, T: Any, P: Any) -> PhaseSplit:
-    """Flash of ``feed`` at T, P with a built model (see :func:`flash`)."""
+def model_flash(model: CompiledModel, feed: Any, T: Any, P: Any,
+                records: Sequence[Species] | None = None) -> PhaseSplit:
+    """Flash of ``feed`` at T, P with a built model (see :func:`flash`). ``records``: the species records in the
+    model's order, for the phases' h and s (NaN without them; h_res and s_res are given either way)."""
     T_si = float(to_si(T, "temperature", "T"))
     P_si = float(to_si(P, "pressure", "P"))
     n0 = _feed_vector(model, feed)
@@ -364,7 +444,7 @@ def model_flash(model: CompiledModel, feed: Any, T: Any, P: Any) -> PhaseSplit:
     m = _ModelAtT(model, T_si)
     species = model.species
     if stability.stable:
-        return _one_phase(m, P_si, z, total, species, stability, model)
+        return _one_phase(m, P_si, z, total, species, stability, model, records)
     w = np.asarray(stability.trial, dtype=float)
     present = z > 0
     with np.errstate(divide="ignore"):
@@ -376,24 +456,23 @@ def model_flash(model: CompiledModel, feed: Any, T: Any, P: Any) -> PhaseSplit:
         lnk = -lnk
     converged, beta, x, y, iterations, residual = _split(m, P_si, z, lnk)
     if not (0.0 < beta < 1.0) or float(np.max(np.abs(x - y))) < 1e-8:
-        out = _one_phase(m, P_si, z, total, species, stability, model)
+        out = _one_phase(m, P_si, z, total, species, stability, model, records)
         return PhaseSplit(T_si, P_si, species, z, total, out.phases, stability, False, iterations, math.inf,
                           out.G_RT, model)
-    vap = _phase(m, P_si, "vapour", beta, total, y, species)
-    liq = _phase(m, P_si, "liquid", 1.0 - beta, total, x, species)
+    vap = _phase(m, P_si, "vapour", beta, total, y, species, records)
+    liq = _phase(m, P_si, "liquid", 1.0 - beta, total, x, species, records)
     if vap.molar_volume < liq.molar_volume:  # name by volume: the vapour is the lighter phase
-        vap, liq = (_phase(m, P_si, "vapour", 1.0 - beta, total, x, species),
-                    _phase(m, P_si, "liquid", beta, total, y, species))
+        vap, liq = (dataclasses.replace(liq, name="vapour"), dataclasses.replace(vap, name="liquid"))
     g = _gibbs(m, P_si, beta * y, (1.0 - beta) * x)
     return PhaseSplit(T_si, P_si, species, z, total, (vap, liq), stability, converged, iterations, residual, g,
                       model)
 
 
 def _one_phase(m: _ModelAtT, P: float, z: np.ndarray, total: float, species: tuple[str, ...],
-               stability: StabilityResult, model: CompiledModel) -> PhaseSplit:
-    phase = _phase(m, P, "gas", 1.0, total, z, species)
+               stability: StabilityResult, model: CompiledModel, records: Sequence[Species] | None) -> PhaseSplit:
+    phase = _phase(m, P, "gas", 1.0, total, z, species, records)
     if phase.liquid_like:
-        phase = _phase(m, P, "liquid", 1.0, total, z, species)
+        phase = dataclasses.replace(phase, name="liquid")
     g = _gibbs(m, P, np.zeros_like(z), z)
     return PhaseSplit(m.T, P, species, z, total, (phase,), stability, True, 0, 0.0, g, model)
 
@@ -415,14 +494,15 @@ def flash(species: Sequence[str | Species], feed: Any, T: Any, P: Any, eos: str 
     z_i = (1 - beta) x_i + beta y_i, starting from the stability test's trial phase (Michelsen 1982; Michelsen &
     Mollerup 2007, ch. 10-11; see the module docstring).
 
-    Returns a :class:`PhaseSplit` (one phase when the feed is stable).
+    Returns a :class:`PhaseSplit` (one phase when the feed is stable); each phase carries its h_res, s_res, h
+    and s (:func:`phase_energies`), the split its totals ``H`` and ``S``.
 
     Raises:
         InputError: naming the field (feed, T, P, eos, kij, ...).
     """
     model = build_model(species, eos, kij, quantum_hydrogen, pure_eos=pure_eos, hydrogen_omega=hydrogen_omega,
                         volume_translation=volume_translation)
-    return model_flash(model, feed, T, P)
+    return model_flash(model, feed, T, P, tuple(lookup_species(s) for s in species))
 
 
 # ---------------------------------------------------------------------------------------------------------
@@ -432,7 +512,11 @@ def flash(species: Sequence[str | Species], feed: Any, T: Any, P: Any, eos: str 
 class SaturationPoint:
     """A bubble or dew point: ``kind`` ("bubble" or "dew"), ``T`` [K], ``P`` [Pa], ``composition`` (the given
     phase's mole fractions), ``incipient`` (the first drop's or bubble's mole fractions), ``converged``,
-    ``iterations``; mappings species -> mole fraction."""
+    ``iterations``, ``message``; mappings species -> mole fraction.
+
+    When the search did not converge, the value that was searched for (``P`` at a given T, ``T`` at a given P)
+    is NaN, never the last trial, and ``message`` says why (the trivial solution y = x, no physical state of the
+    model, or no root within the Newton steps, with the last trial and its residual)."""
 
     kind: str
     T: float
@@ -442,6 +526,7 @@ class SaturationPoint:
     incipient_fractions: np.ndarray
     converged: bool
     iterations: int
+    message: str = ""
 
     @property
     def composition(self) -> Mapping[str, float]:
@@ -520,8 +605,17 @@ def _saturation(model: CompiledModel, kind: str, composition: Any, T: Any, P: An
     iterations = 1
     h = 1e-4
     converged = False
-    for _ in range(100):
-        if not math.isfinite(f) or trivial:
+    sought, unit = ("pressure", "Pa") if find_p else ("temperature", "K")
+    given = f"T = {fixed:.6g} K" if find_p else f"P = {fixed:.6g} Pa"
+    why = ""
+    for _ in range(NEWTON_SATURATION):
+        if not math.isfinite(f):
+            why = (f"the model has no physical state of one of the phases at the trial {sought} "
+                   f"{math.exp(x):.6g} {unit}")
+            break
+        if trivial:
+            why = (f"the incipient phase became the given one (y = x, the trivial solution) at the trial {sought} "
+                   f"{math.exp(x):.6g} {unit}: near a critical point, or no {kind} point of this mixture at {given}")
             break
         if abs(f) < 1e-11:
             converged = True
@@ -530,16 +624,25 @@ def _saturation(model: CompiledModel, kind: str, composition: Any, T: Any, P: An
         iterations += 1
         der = (f2 - f) / h
         if not (math.isfinite(der) and der != 0.0):
+            why = (f"the residual stopped changing with ln {sought[0].upper()} at the trial {sought} "
+                   f"{math.exp(x):.6g} {unit}")
             break
         step = -f / der
         step = max(-0.5, min(0.5, step))
         x += step
         f, w, lnk, trivial = residual(math.exp(x), lnk)
         iterations += 1
-    value = math.exp(x)
+    else:
+        residual_name = "ln sum_i x_i K_i" if bubble else "ln sum_i y_i / K_i"
+        why = (f"no root in {NEWTON_SATURATION} Newton steps on ln {sought[0].upper()}: {residual_name} is still "
+               f"{f:.3g} at the last trial {sought} {math.exp(x):.6g} {unit} (the {kind} {sought} may not exist "
+               f"for this mixture and model at {given})")
+    value = math.exp(x) if converged else math.nan
     Tv, Pv = (fixed, value) if find_p else (value, fixed)
-    return SaturationPoint(kind, Tv, Pv, model.species, z, np.asarray(w, dtype=float), converged and not trivial,
-                           iterations)
+    message = (f"{kind} {sought} found at {given} in {iterations} evaluations" if converged else
+               f"no {kind} {sought} at {given} ({sought} NaN): {why}")
+    return SaturationPoint(kind, Tv, Pv, model.species, z, np.asarray(w, dtype=float), converged, iterations,
+                           message)
 
 
 def bubble_point(species: Sequence[str | Species], liquid: Any, T: Any = None, P: Any = None, eos: str = "PR",
@@ -548,7 +651,9 @@ def bubble_point(species: Sequence[str | Species], liquid: Any, T: Any = None, P
     the temperature at P [Pa], where the first bubble of vapour forms: sum_i x_i K_i = 1 with
     K_i = phi_i^L(x) / phi_i^V(y), y_i = x_i K_i (Michelsen & Mollerup 2007, ch. 12). Starts from Wilson's
     K-factors; Newton's method on ln P (or ln T) outside, successive substitution of the vapour inside. A near-
-    critical liquid can give the trivial answer (y = x): then ``converged`` is False."""
+    critical liquid can give the trivial answer (y = x), and some liquids have no bubble point at all (a gas
+    dissolved beyond what the model lets it dissolve at any pressure): then ``converged`` is False, the pressure
+    (or temperature) sought is NaN and ``message`` says why."""
     model = build_model(species, eos, kij, **model_options)
     return _saturation(model, "bubble", liquid, T, P)
 

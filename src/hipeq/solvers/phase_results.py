@@ -3,24 +3,29 @@ carries (kept apart from :mod:`hipeq.solvers.result` so that the result classes 
 
 The stability test is :mod:`hipeq.models.stability` (Michelsen 1982), run with the system's model at the answer's
 T, P and overall mole fractions.
+
+The energies of a two-phase answer (:func:`two_phase_energies`) are those of its phases, each from
+:func:`hipeq.models.phases.phase_energies` at the answer's T, P, the phase's amounts and its own volume root; the
+result's H, S, U are their sums and h_res, s_res their amount-weighted means (:mod:`hipeq.solvers.result`).
 """
 from __future__ import annotations
 
-from typing import Any
+import math
+from typing import Any, NamedTuple
 
 import numpy as np
 
 from hipeq.constants import R
 from hipeq.models import _kernels as K
 from hipeq.models import _stability as S
-from hipeq.models.phases import Phase
+from hipeq.models.phases import Phase, phase_energies
 from hipeq.models.stability import StabilityResult, result_from_arrays, run_states
 from hipeq.solvers.two_phase import TwoPhaseAnswer, solve_two_phase
 
 _LABELS = {K.ROOT_SINGLE: "single", K.ROOT_GAS: "gas-like", K.ROOT_LIQUID: "liquid-like", K.ROOT_INVALID: "none"}
 
 __all__ = ["answer_stability", "unstable_text", "answer_phases", "answer_phase_count", "split_unstable",
-           "unstable_states", "two_phase_answer", "PHASE_OPTIONS"]
+           "unstable_states", "two_phase_answer", "two_phase_energies", "PhaseEnergy", "PHASE_OPTIONS"]
 
 PHASE_OPTIONS = ("auto", "one")
 
@@ -67,6 +72,44 @@ def _two_phase(result: Any, flat: int | None) -> Any:
     return data.get(0 if flat is None else flat)
 
 
+class PhaseEnergy(NamedTuple):
+    """Energies of one phase of a two-phase answer: ``amount`` [mol], ``h_res`` [J/mol], ``s_res`` [J/(mol K)],
+    ``H`` [J] and ``S`` [J/K] (the phase's totals, :func:`hipeq.models.phases.phase_energies`) and ``V`` [m3]
+    (Z_p n_p R T / P, its own root)."""
+
+    amount: float
+    h_res: float
+    s_res: float
+    H: float
+    S: float
+    V: float
+
+
+def two_phase_energies(result: Any) -> dict[int, tuple[PhaseEnergy, PhaseEnergy]]:
+    """Flat index (0 for a scalar result) -> (vapour, liquid) :class:`PhaseEnergy` of every two-phase state of
+    ``result`` (empty for a result without one). NaN values for a state that did not converge."""
+    data = result.__dict__.get("_phase_data")
+    if not data:
+        return {}
+    info = result._info
+    status = np.ravel(np.asarray(result.status))
+    T_all = np.ravel(np.broadcast_to(np.asarray(result.T, dtype=float), np.shape(result.status)))
+    P_all = np.ravel(np.broadcast_to(np.asarray(result.P, dtype=float), np.shape(result.status)))
+    out = {}
+    for k, answer in data.items():
+        T, P = float(T_all[k]), float(P_all[k])
+        phases = []
+        for n, z in ((answer.vapour, answer.Z_vapour), (answer.liquid, answer.Z_liquid)):
+            amount = float(np.sum(n))
+            if status[k] == 0:
+                h_res, s_res, H, S = phase_energies(info.model, info.records or None, T, P, n, float(z))
+            else:
+                h_res = s_res = H = S = math.nan
+            phases.append(PhaseEnergy(amount, h_res, s_res, H, S, float(z) * amount * R * T / P))
+        out[int(k)] = (phases[0], phases[1])
+    return out
+
+
 def two_phase_answer(result: Any, flat: int | None = None) -> TwoPhaseAnswer | None:
     """The :class:`~hipeq.solvers.two_phase.TwoPhaseAnswer` behind a two-phase result (state ``flat`` of a
     batch), or None for a one-phase answer."""
@@ -108,7 +151,9 @@ def _row(values: Any, flat: int | None) -> Any:
     return array.reshape(-1, array.shape[-1])[flat] if array.ndim > 1 or array.shape[-1:] else array
 
 
-def _phases_of_state(result: Any, flat: int | None) -> tuple[Phase, ...]:
+def _phases_of_state(result: Any, flat: int | None, molar: tuple[np.ndarray, ...]) -> tuple[Phase, ...]:
+    """The phases of state ``flat`` (None: a scalar result); ``molar``: the result's h_res, s_res, h, s raveled
+    (a one-phase state's phase carries them)."""
     species = result._info.species
     answer = _two_phase(result, flat)
     T = float(np.ravel(result.T)[flat or 0]) if flat is not None else float(result.T)
@@ -116,13 +161,15 @@ def _phases_of_state(result: Any, flat: int | None) -> tuple[Phase, ...]:
     if answer is not None:
         out = []
         total = float(answer.vapour.sum() + answer.liquid.sum())
-        for name, n, lnphi, z, root in (("vapour", answer.vapour, answer.ln_phi_vapour, answer.Z_vapour,
-                                         answer.root_vapour),
-                                        ("liquid", answer.liquid, answer.ln_phi_liquid, answer.Z_liquid,
-                                         answer.root_liquid)):
+        energies = result._phase_energy[0 if flat is None else flat]
+        for name, n, lnphi, z, root, e in (("vapour", answer.vapour, answer.ln_phi_vapour, answer.Z_vapour,
+                                            answer.root_vapour, energies[0]),
+                                           ("liquid", answer.liquid, answer.ln_phi_liquid, answer.Z_liquid,
+                                            answer.root_liquid, energies[1])):
             amount = float(n.sum())
             out.append(Phase(name, amount / total, amount, species, n / amount, np.array(lnphi, dtype=float), z,
-                             z * R * T / P, _LABELS.get(root, "none"), name == "liquid"))
+                             z * R * T / P, _LABELS.get(root, "none"), name == "liquid", e.h_res, e.s_res,
+                             e.H / amount, e.S / amount))
         return tuple(out)
     nc = len(species)
     amounts = np.asarray(result._amounts, dtype=float).reshape(-1, nc)[flat or 0]
@@ -132,15 +179,17 @@ def _phases_of_state(result: Any, flat: int | None) -> tuple[Phase, ...]:
     liquid = bool(np.ravel(result.liquid_like)[flat or 0])
     root = str(np.ravel(result.root)[flat or 0])
     total = float(amounts.sum())
+    h_res, s_res, h, s = (float(v[flat or 0]) for v in molar)
     return (Phase("liquid" if liquid else "gas", 1.0, total, species, np.array(y), np.array(ln_phis), Z,
-                  Z * R * T / P, root, liquid),)
+                  Z * R * T / P, root, liquid, h_res, s_res, h, s),)
 
 
 def answer_phases(result: Any) -> Any:
     """``result.phases``: a tuple of Phase for a scalar result, a list of them over a batch (flat order)."""
+    molar = tuple(np.ravel(v) for v in (result.h_res, result.s_res, result.h, result.s))
     if np.ndim(result.status) == 0:
-        return _phases_of_state(result, None)
-    return [_phases_of_state(result, k) for k in range(int(np.size(result.status)))]
+        return _phases_of_state(result, None, molar)
+    return [_phases_of_state(result, k, molar) for k in range(int(np.size(result.status)))]
 
 
 def answer_phase_count(result: Any) -> Any:

@@ -24,11 +24,10 @@ from typing import Any
 
 import numpy as np
 from scipy.optimize import brentq
-from scipy.special import xlogy
 
-from hipeq.constants import P_STANDARD, R
+from hipeq.constants import R
 from hipeq.data.species import Species
-from hipeq.data.thermochem import standard_enthalpies, standard_entropies
+from hipeq.data.thermochem import ideal_gas_parts  # noqa: F401 (kept importable from here)
 from hipeq.errors import InputError
 from hipeq.models.inputs import P_MAX
 
@@ -103,21 +102,6 @@ class MixtureProperties(MolarValues):
     def g(self) -> Any:
         """Molar Gibbs energy G / n [J/mol]."""
         return self.G / self.n_total
-
-
-def ideal_gas_parts(records: Sequence[Species], T: Any, amounts: np.ndarray, P: Any) -> tuple[Any, Any]:
-    """Ideal-gas mixture enthalpy [J] and entropy [J/K]: sum_i n_i H0_i(T) and
-    sum_i n_i [S0_i(T) - R ln(y_i P/P0)] (y_i ln y_i -> 0 for absent species). T [K], amounts [mol] (species on
-    the last axis, broadcast with T and P), P [Pa]. Raises InputError("T") outside the species' Cp ranges."""
-    T = np.asarray(T, dtype=float)
-    amounts = np.asarray(amounts, dtype=float)
-    H0 = standard_enthalpies(records, T)
-    S0 = standard_entropies(records, T)
-    n = amounts.sum(axis=-1)
-    H = np.sum(amounts * H0, axis=-1)
-    mixing = np.sum(xlogy(amounts, amounts), axis=-1) - xlogy(n, n)  # sum_i n_i ln y_i
-    S = np.sum(amounts * S0, axis=-1) - R * (mixing + n * np.log(np.asarray(P, dtype=float) / P_STANDARD))
-    return H, S
 
 
 def _pressure_from_volume(model: Any, T: float, V: float, n: float, y: np.ndarray) -> float:

@@ -263,9 +263,18 @@ class _Common(MolarValues):
         return SpeciesValues(self._info.elements, self._info.element_index, self._element_res)
 
     @cached_property
+    def _phase_energy(self) -> dict[int, Any]:
+        """Flat index -> (vapour, liquid) energies of every two-phase state (empty for a one-phase result; see
+        :func:`hipeq.solvers.phase_results.two_phase_energies`)."""
+        from hipeq.solvers.phase_results import two_phase_energies
+
+        return two_phase_energies(self)
+
+    @cached_property
     def _residual(self) -> tuple[np.ndarray, np.ndarray]:
         """(h_res [J/mol], s_res [J/(mol K)]) at the answer; NaN where the state did not converge or where the
-        model's stable root at (T, P, y) is not the one the answer took (a sealed vessel between two roots)."""
+        model's stable root at (T, P, y) is not the one the answer took (a sealed vessel between two roots). A
+        two-phase state: the amount-weighted means over its phases, sum_p n_p h_res,p / n."""
         status = np.asarray(self.status)
         T, P, Z = (np.broadcast_to(np.asarray(v, dtype=float), status.shape) for v in (self.T, self.P, self.Z))
         h, s = np.full(status.shape, np.nan), np.full(status.shape, np.nan)
@@ -275,27 +284,41 @@ class _Common(MolarValues):
             same_root = np.abs(np.asarray(states.Z) - Z[ok]) <= 1e-7 * np.maximum(Z[ok], 1e-3)
             h[ok] = np.where(same_root, states.h_res, np.nan)
             s[ok] = np.where(same_root, (states.h_res - R_GAS * T[ok] * states.g_res_RT) / T[ok], np.nan)
+        for k, phases in self._phase_energy.items():  # after the one-phase states: those stay as they were
+            n = sum(p.amount for p in phases)
+            h.flat[k] = sum(p.amount * p.h_res for p in phases) / n
+            s.flat[k] = sum(p.amount * p.s_res for p in phases) / n
         return _scalars_or_frozen(h, s)
 
     @property
     def h_res(self) -> Any:
         """Residual molar enthalpy of the equilibrium mixture [J/mol], h - h_ideal gas at the same T, P, y:
         h_res = -R T^2 d(g_res/RT)/dT at fixed P, y (Michelsen & Mollerup 2007, ch. 2), from the system's fugacity
-        model at the answer (0 for the ideal gas). NaN where the state did not converge."""
+        model at the answer (0 for the ideal gas). A two-phase answer: the amount-weighted mean of its phases'
+        h_res (each at its own composition and volume root, ``phases``), sum_p n_p h_res,p / n, so that
+        H = sum_i n_i H0_i(T) + n h_res still holds. NaN where the state did not converge."""
         return self._residual[0]
 
     @property
     def s_res(self) -> Any:
         """Residual molar entropy of the equilibrium mixture [J/(mol K)] at the same T, P, y:
-        s_res = (h_res - g_res)/T (Michelsen & Mollerup 2007, ch. 2). NaN where the state did not converge."""
+        s_res = (h_res - g_res)/T (Michelsen & Mollerup 2007, ch. 2). A two-phase answer: the amount-weighted
+        mean of its phases' s_res (S is then not the ideal-gas mixture at the overall y plus n s_res: each phase
+        mixes at its own composition, see ``S``). NaN where the state did not converge."""
         return self._residual[1]
 
     @cached_property
     def _energy(self) -> tuple[Any, Any]:
-        """(H [J], S [J/K]) of the equilibrium mixture, NaN where h_res is NaN (see ``hipeq.solvers.properties``)."""
+        """(H [J], S [J/K]) of the equilibrium mixture, NaN where h_res is NaN (see ``hipeq.solvers.properties``);
+        a two-phase state: the sums over its phases."""
         h_res, s_res = (np.asarray(v, dtype=float) for v in self._residual)
         H, S = np.full(h_res.shape, np.nan), np.full(h_res.shape, np.nan)
         ok = np.isfinite(h_res)
+        split = self._phase_energy
+        if split:  # two-phase states are summed over their phases below
+            ok = np.array(ok)
+            for k in split:
+                ok.flat[k] = False
         if np.any(ok):
             T, P = (np.broadcast_to(np.asarray(v, dtype=float), h_res.shape)[ok] for v in (self.T, self.P))
             n = self._amounts[ok] if h_res.ndim else self._amounts
@@ -303,6 +326,9 @@ class _Common(MolarValues):
             n_tot = np.sum(n, axis=-1)
             H[ok] = H_id + n_tot * h_res[ok]
             S[ok] = S_id + n_tot * s_res[ok]
+        for k, phases in split.items():
+            H.flat[k] = sum(p.H for p in phases)
+            S.flat[k] = sum(p.S for p in phases)
         return _scalars_or_frozen(H, S)
 
     @property
@@ -310,19 +336,34 @@ class _Common(MolarValues):
         """Enthalpy of the equilibrium mixture [J], relative to the elements at 298.15 K (ideal gas):
         H = sum_i n_i H0_i(T) + n h_res, H0_i = ΔfH0_i + ∫_298.15^T Cp_i dT (Smith, Van Ness & Abbott 2005, sec.
         4.3; :mod:`hipeq.solvers.properties`). Includes the formation enthalpies, so H_feed - H_out is the heat
-        given off. NaN where the state did not converge."""
+        given off. A two-phase answer: the sum over its phases, H = sum_p [sum_i n_i^p H0_i(T) + n_p h_res,p],
+        each phase's residual enthalpy at its own composition and volume root (``phases``; the liquid's h_res
+        carries the heat of condensation). NaN where the state did not converge."""
         return self._energy[0]
 
     @property
     def S(self) -> Any:
         """Absolute entropy of the equilibrium mixture [J/K]: sum_i n_i [S0_i(T) - R ln(y_i P/P0)] + n s_res,
-        P0 = 1 bar. NaN where the state did not converge."""
+        P0 = 1 bar. A two-phase answer: the sum over its phases of the same expression at each phase's own
+        composition, sum_p (sum_i n_i^p [S0_i(T) - R ln(x_i^p P/P0)] + n_p s_res,p). NaN where the state did not
+        converge."""
         return self._energy[1]
 
     @property
     def U(self) -> Any:
-        """Internal energy of the equilibrium mixture [J], U = H - P V (same reference as H)."""
-        return self._energy[0] - np.asarray(self.P) * np.asarray(self.V)
+        """Internal energy of the equilibrium mixture [J], U = H - P V (same reference as H). A two-phase answer:
+        U = H - P (V_vapour + V_liquid), each phase's V_p = Z_p n_p R T / P (for a sealed vessel their sum is the
+        vessel's V to 1e-9)."""
+        U = self._energy[0] - np.asarray(self.P) * np.asarray(self.V)
+        split = self._phase_energy
+        if not split:
+            return U
+        U = np.array(U, dtype=float)
+        H = np.asarray(self._energy[0], dtype=float)
+        P = np.broadcast_to(np.asarray(self.P, dtype=float), U.shape)
+        for k, phases in split.items():
+            U.flat[k] = H.flat[k] - P.flat[k] * sum(p.V for p in phases)
+        return _scalars_or_frozen(U)[0]
 
     @property
     def n_total(self) -> Any:

@@ -123,7 +123,7 @@ def solve_two_phase(system: Any, T: float, P: float, amounts: np.ndarray, ln_k: 
     n1 = np.asarray(amounts, dtype=float)
     active = n1 > 0.0
     idx = np.flatnonzero(active)
-    split = model_flash(model, n1, T, P)
+    split = model_flash(model, n1, T, P, system.records)
     if split.phase_count < 2:
         return None
     vap, liq = split.phases
