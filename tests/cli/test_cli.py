@@ -109,3 +109,39 @@ volume = "1 L"
     main = next(v for k, v in json.loads(target.read_text())["sections"].items() if k.startswith("Equilibrium"))
     assert main["status"] == 0 and main["result"]["phase_count"] == 2
     assert 30e5 < main["result"]["P"] < 40e5
+
+
+def test_compare_and_sweep_mark_two_phase_answers_and_the_verdict_names_the_liquid(tmp_path):
+    """The same vessel with [compare] and a two-axis [sweep]: real-gas rows of the comparison are marked
+    two-phase (not liquid-like), the verdict says a liquid forms and gives both pressures, the sweep's grid marks
+    its two-phase cells with ^, and the one-gas warning is not printed beside the two-phase one."""
+    case = tmp_path / "vessel.toml"
+    case.write_text("""
+[mixture]
+species = ["CO2", "H2", "CO", "CH3OH", "H2O"]
+reactions = ["CO2 + 3 H2 = CH3OH + H2O", "CO2 + H2 = CO + H2O"]
+[feed]
+CO2 = "1 mol"
+H2 = "3.05 mol"
+CO = "0.04 mol"
+[conditions]
+temperature = "150 degC"
+volume = "1 L"
+[compare]
+models = ["ideal", "SRK", "PR"]
+[sweep]
+temperature = ["150 degC", "400 degC", 2]
+volume = ["1 L", "2 L", 2]
+""")
+    target = tmp_path / "out.json"
+    code, out, _ = _run("run", str(case), "--json", str(target))
+    assert code == 0
+    rows = {line.split()[0]: line.split()[-1] for line in out.splitlines()
+            if line.split()[:1] in (["SRK"], ["PR"]) and len(line.split()) == 5}  # the comparison's rows
+    assert rows == {"SRK": "two-phase", "PR": "two-phase"}
+    assert "But a liquid forms in the PR answer" in out and "in the vessel the ideal gas gives" in out
+    assert "one-gas answer is doubtful" not in out
+    grid = [line.split() for line in out.splitlines() if line.startswith("  150.00") or line.startswith("  400.00")]
+    assert grid[0][1].endswith("^") and not grid[1][1].endswith("^")  # 150 degC in 1 L splits, 400 degC does not
+    sweep = next(v for k, v in json.loads(target.read_text())["sections"].items() if k.startswith("Sweep"))
+    assert sweep["phase_count"][0][0] == 2 and sweep["phase_count"][1][0] == 1

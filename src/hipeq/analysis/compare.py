@@ -463,4 +463,18 @@ def _verdict(c: Comparison, ideal: EquilibriumResult, failed: list[str]) -> str:
     gap = f"{points:.1f}" if points >= 0.1 else f"{points:.2g}"
     return (f"{where} the ideal gas gives {c.ideal_y:.4g} {key}, {gap} mole-percent points {side} "
             f"{ref} ({c.y_key[ref]:.4g}); {span}; the ideal-gas estimate is {judged} at a tolerance of {tol}."
-            + excluded)
+            + _liquid_words(c, ideal) + excluded)
+
+
+def _liquid_words(c: Comparison, ideal: EquilibriumResult) -> str:
+    """A sentence when the reference answer holds a liquid: the ideal gas (one gas by definition) cannot show it,
+    and in a sealed vessel its pressure differs."""
+    reference = c.results[c.reference]
+    if reference.status != 0 or reference.phase_count != 2:
+        return ""
+    liquid = reference.phases[1]
+    words = (f" But a liquid forms in the {c.reference} answer ({100.0 * liquid.fraction:.3g} % of the moles), "
+             "which the ideal gas cannot show")
+    if c.P is None:
+        words += f"; in the vessel the ideal gas gives {_bar(ideal.P)} against {_bar(reference.P)}"
+    return words + "."

@@ -31,7 +31,7 @@ import numpy as np
 
 from hipeq.errors import HipeqError, InputError, UnbalancedReactionError, UnknownSpeciesError
 from hipeq.interfaces.sections import (CAUTION, LEGEND, MARK_FAILED, MARK_LIQUID, MARK_TWO_PHASE, STANDARD_STATE,
-                                       Section, amount_unit, mark, number)
+                                       Section, amount_unit, mark, number, result_mark)
 
 EXIT_OK, EXIT_FAILED_STATE, EXIT_BAD_INPUT = 0, 1, 2
 
@@ -81,9 +81,7 @@ def _conditions(case: Any) -> dict[str, Any]:
 def solve_section(case: Any, system: Any) -> tuple[Section, Any]:
     """The main equilibrium of the case: reactions, species, status."""
     result = _in_case(lambda: system.equilibrium(feed=case.feed, T=case.T, **_conditions(case), **case.solver))
-    state_mark = mark(int(result.status), bool(result.liquid_like))
-    if result.status == 0 and result.phase_count == 2:
-        state_mark = MARK_TWO_PHASE
+    state_mark = result_mark(result)
     fixed = f"V = {number(case.V)} m3 (sealed vessel)" if case.V is not None else f"P = {number(case.P / 1e5)} bar"
     section = Section(f"Equilibrium at T = {case.T - 273.15:.2f} degC ({case.T:.2f} K), {fixed}",
                       ["species", "feed [{}]", "equilibrium [{}]", "mole fraction [-]", "phi [-]", "status"])
@@ -108,7 +106,7 @@ def solve_section(case: Any, system: Any) -> tuple[Section, Any]:
                              f"{100 * liquid.fraction:.2f} % of the moles; liquid: " + ", ".join(
                                  f"{n} {liquid.y[n]:.4f}" for n in shown if liquid.y[n] >= 1e-4)
                              + " (mole fractions); the table shows the overall composition")
-    if result.liquid_like:
+    elif result.liquid_like:
         section.notes.append("WARNING: the answer took a liquid-like volume root; a liquid may form and the "
                              "one-gas answer is doubtful")
     section.failed = 0 if ok else 1
@@ -144,7 +142,7 @@ def compare_section(case: Any, system: Any) -> Section:
         section.rows.append([label, number(result.y[comparison.key], 6) if ok else "-",
                              f"{dev:+.5f}" if ok and np.isfinite(dev) else "-",
                              number(float(comparison.conversion[label])) if ok else "-",
-                             mark(int(result.status), bool(result.liquid_like))])
+                             result_mark(result)])
         if not ok:
             section.failed += 1
             section.notes.append(f"{label}: {result.message}")
@@ -169,6 +167,7 @@ def sweep_section(case: Any, system: Any) -> Section:
                       ["T [degC]", "P [bar]" if second == "pressure" else "V [m3]", f"y {key} [-]", "P eq [bar]",
                        "status"])
     status, liquid = np.asarray(batch.status), np.asarray(batch.liquid_like)
+    two_phase = (np.asarray(batch.phase_count) == 2) & (status == 0)
     y, P = np.asarray(batch.y[key]), np.asarray(batch.P)
     grid = TT.shape[0] > 1 and TT.shape[1] > 1
     if grid:  # two axes: a grid, rows T, columns P (or V); marks in the cells
@@ -180,21 +179,25 @@ def sweep_section(case: Any, system: Any) -> Section:
             cells = [f"{T_axis[i] - 273.15:.2f}"]
             for j in range(TT.shape[1]):
                 value = f"{y[i, j]:.4f}" if y[i, j] >= 1e-3 else number(y[i, j], 3)
-                cells.append(MARK_FAILED if status[i, j] else value + ("*" if liquid[i, j] else ""))
+                suffix = "^" if two_phase[i, j] else ("*" if liquid[i, j] else "")
+                cells.append(MARK_FAILED if status[i, j] else value + suffix)
             section.rows.append(cells)
-        if np.any(status) or np.any(liquid):
-            section.notes.append(f"{MARK_FAILED}: did not converge; *: {MARK_LIQUID} root (a liquid may form)")
+        if np.any(status) or np.any(liquid) or np.any(two_phase):
+            section.notes.append(f"{MARK_FAILED}: did not converge; ^: {MARK_TWO_PHASE} (a vapour and a liquid; "
+                                 f"the overall mole fraction); *: {MARK_LIQUID} root (a liquid may form)")
     for i in range(0 if grid else TT.shape[0]):
         for j in range(TT.shape[1]):
             ok = status[i, j] == 0
             value = SS[i, j] / 1e5 if second == "pressure" else SS[i, j]
             section.rows.append([f"{TT[i, j] - 273.15:.2f}", number(value), number(y[i, j], 6) if ok else "-",
-                                 number(P[i, j] / 1e5) if ok else "-", mark(int(status[i, j]), bool(liquid[i, j]))])
+                                 number(P[i, j] / 1e5) if ok else "-",
+                                 mark(int(status[i, j]), bool(liquid[i, j]), 2 if two_phase[i, j] else 1)])
     section.failed = int(np.count_nonzero(status))
     for flat in np.flatnonzero(status.ravel())[:3]:
         section.notes.append(f"state {flat}: {batch.message(int(flat))}")
     section.data = {"key": key, "T [K]": TT.tolist(), ("P [Pa]" if second == "pressure" else "V [m3]"): SS.tolist(),
                     f"y_{key} [-]": np.where(status == 0, y, np.nan).tolist(), "status": status.tolist(),
+                    "phase_count": np.where(two_phase, 2, 1).tolist(),
                     "P_equilibrium [Pa]": P.tolist()}
     return section
 
@@ -263,7 +266,7 @@ def adiabatic_section(case: Any, system: Any) -> Section:
         ok = out.status == 0
         section.rows.append([label, f"{out.T - 273.15:.2f}" if ok else "-",
                              f"{out.temperature_rise:+.2f}" if ok else "-",
-                             number(out.y[key], 5) if ok else "-", mark(int(out.status), bool(out.liquid_like))])
+                             number(out.y[key], 5) if ok else "-", result_mark(out)])
         section.failed += 0 if ok else 1
         section.data[label] = {"T_out [K]": out.T, "temperature_rise [K]": out.temperature_rise,
                                f"y_{key} [-]": out.y[key], "status": int(out.status), "message": out.message}
@@ -289,7 +292,7 @@ def beds_section(case: Any, system: Any, folder: Path | None) -> Section:
         section.rows.append([str(bed.number), f"{bed.T_in - 273.15:.1f}", f"{bed.T_out - 273.15:.2f}",
                              f"{100 * bed.conversion_in:.2f}", f"{100 * bed.conversion_out:.2f}",
                              number(bed.heat_removed_after / 1e3), number(bed.quench_added),
-                             mark(int(bed.outlet.status), bool(bed.outlet.liquid_like))])
+                             result_mark(bed.outlet)])
     if folder is not None:
         path = folder / "beds.png"
         figure = train.figure()

@@ -73,11 +73,19 @@ def table(header: Sequence[str], rows: Sequence[Sequence[str]]) -> str:
     return "\n".join(["  " + line(header), "  " + rule] + ["  " + line(r) for r in rows])
 
 
-def mark(status: int, liquid_like: bool) -> str:
-    """The status mark of one state."""
+def mark(status: int, liquid_like: bool, phase_count: int = 1) -> str:
+    """The status mark of one state: failed (with its status code), two-phase (a converged vapour-liquid answer),
+    liquid-like (a converged one-phase answer on a liquid-like root) or ok."""
     if status != 0:
         return f"{MARK_FAILED} ({int(status)})"
+    if phase_count == 2:
+        return MARK_TWO_PHASE
     return MARK_LIQUID if liquid_like else MARK_OK
+
+
+def result_mark(result: Any) -> str:
+    """:func:`mark` of one solver result (an equilibrium or adiabatic result)."""
+    return mark(int(result.status), bool(result.liquid_like), int(getattr(result, "phase_count", 1)))
 
 
 def amount_unit(values: Sequence[float]) -> tuple[str, float]:
