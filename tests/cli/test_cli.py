@@ -81,12 +81,9 @@ def test_case_kij_applies_to_its_own_model_and_comparison_still_runs(tmp_path):
     assert comparison["reference"] == "PR (case)"
 
 
-def test_sealed_vessel_with_a_liquid_is_marked_two_phase(tmp_path):
-    """[conditions] volume for a vessel that no single phase fills (the demo methanol system at 150 degC in 1 L,
-    tests/solvers/test_vessel_two_phase.py): the table marks the state two-phase, the notes give the split and the
-    pressure found, and the caution stays."""
-    case = tmp_path / "vessel.toml"
-    case.write_text("""
+# the demo methanol system (src/hipeq/interfaces/demo/co2_methanol.toml, invented) at 150 degC in a 1 L vessel
+# that no single phase fills (tests/solvers/test_vessel_two_phase.py)
+VESSEL_CASE = """
 [mixture]
 species = ["CO2", "H2", "CO", "CH3OH", "H2O"]
 reactions = ["CO2 + 3 H2 = CH3OH + H2O", "CO2 + H2 = CO + H2O"]
@@ -97,7 +94,15 @@ CO = "0.04 mol"
 [conditions]
 temperature = "150 degC"
 volume = "1 L"
-""")
+"""
+
+
+def test_sealed_vessel_with_a_liquid_is_marked_two_phase(tmp_path):
+    """[conditions] volume for a vessel that no single phase fills (the demo methanol system at 150 degC in 1 L,
+    tests/solvers/test_vessel_two_phase.py): the table marks the state two-phase, the notes give the split and the
+    pressure found, and the caution stays."""
+    case = tmp_path / "vessel.toml"
+    case.write_text(VESSEL_CASE)
     target = tmp_path / "out.json"
     code, out, _ = _run("run", str(case), "--json", str(target))
     assert code == 0
@@ -116,18 +121,7 @@ def test_compare_and_sweep_mark_two_phase_answers_and_the_verdict_names_the_liqu
     two-phase (not liquid-like), the verdict says a liquid forms and gives both pressures, the sweep's grid marks
     its two-phase cells with ^, and the one-gas warning is not printed beside the two-phase one."""
     case = tmp_path / "vessel.toml"
-    case.write_text("""
-[mixture]
-species = ["CO2", "H2", "CO", "CH3OH", "H2O"]
-reactions = ["CO2 + 3 H2 = CH3OH + H2O", "CO2 + H2 = CO + H2O"]
-[feed]
-CO2 = "1 mol"
-H2 = "3.05 mol"
-CO = "0.04 mol"
-[conditions]
-temperature = "150 degC"
-volume = "1 L"
-[compare]
+    case.write_text(VESSEL_CASE + """[compare]
 models = ["ideal", "SRK", "PR"]
 [sweep]
 temperature = ["150 degC", "400 degC", 2]
