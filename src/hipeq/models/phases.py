@@ -43,6 +43,7 @@ from hipeq.data.species import species as lookup_species
 from hipeq.data.thermochem import ideal_gas_parts
 from hipeq.errors import InputError
 from hipeq.models import _kernels as K
+from hipeq.models._flash import rachford_rice
 from hipeq.models.eos import CompiledModel, build_model
 from hipeq.models.kij import KijInput
 from hipeq.models.stability import StabilityResult, model_stability
@@ -277,38 +278,11 @@ class _ModelAtT:
 
 def _rachford_rice(z: np.ndarray, lnk: np.ndarray) -> tuple[float, np.ndarray, np.ndarray]:
     """beta in [0, 1] solving sum_i z_i (K_i - 1) / (1 + beta (K_i - 1)) = 0 (clipped to the end when the root
-    lies outside), and x, y."""
-    k = np.exp(np.clip(lnk, -700.0, 700.0))
-    c = k - 1.0
-
-    def f(beta: float) -> float:
-        return float(np.sum(z * c / (1.0 + beta * c)))
-
-    if f(0.0) <= 0.0:
-        beta = 0.0
-    elif f(1.0) >= 0.0:
-        beta = 1.0
-    else:
-        lo, hi = 0.0, 1.0
-        beta = 0.5
-        for _ in range(200):
-            d = 1.0 + beta * c
-            val = float(np.sum(z * c / d))
-            if val > 0.0:
-                lo = beta
-            else:
-                hi = beta
-            der = -float(np.sum(z * c * c / (d * d)))
-            new = beta - val / der if der < 0.0 else 0.5 * (lo + hi)
-            if not (lo < new < hi):
-                new = 0.5 * (lo + hi)
-            if abs(new - beta) <= 1e-15 * max(beta, 1e-300) or hi - lo < 1e-16:
-                beta = new
-                break
-            beta = new
-    x = z / (1.0 + beta * c)
-    y = k * x
-    return beta, x / x.sum(), y / y.sum()
+    lies outside), and x, y (Rachford & Rice 1952; compiled: :func:`hipeq.models._flash.rachford_rice`)."""
+    x = np.empty(z.shape[0])
+    y = np.empty(z.shape[0])
+    beta = rachford_rice(np.ascontiguousarray(z, dtype=float), np.ascontiguousarray(lnk, dtype=float), x, y)
+    return float(beta), x, y
 
 
 def _gibbs(m: _ModelAtT, P: float, v: np.ndarray, l: np.ndarray) -> float:
