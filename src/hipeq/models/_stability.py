@@ -26,7 +26,9 @@ converge.
 Trials (``TRIAL_*``): Wilson K-factors K_i = (P_ci / P) exp[5.373 (1 + omega_i)(1 - T_ci / T)] (Wilson 1969;
 Michelsen & Mollerup 2007, ch. 9) giving a vapour-like W = z K and a liquid-like W = z / K; the present component
 of highest critical temperature as a nearly pure liquid (the condensing product: water, methanol, ammonia); then
-each present component nearly pure.
+each present component nearly pure. A trial stops early once it lies near the tested phase or near a minimum an
+earlier trial reached, where that point is a local minimum of tm with a margin (``stability_states``, "Early
+exits"); ``exits=False`` runs every trial to convergence.
 """
 from __future__ import annotations
 
@@ -37,7 +39,8 @@ import numpy as np
 from hipeq._jit import entry, kernel
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_VIRIAL, OMEGA, OMEGA_A, OMEGA_B,
                                    ROOT_INVALID,
-                                   ROOT_LIQUID, TC, R, effective_critical, ln_phi_dn_tp, ln_phi_tp, tdep_into)
+                                   ROOT_LIQUID, TC, R, effective_critical, ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_tp,
+                                   tdep_into)
 
 TRIAL_NONE = -1  # no trial went below zero
 TRIAL_WILSON_VAPOUR = 0
@@ -50,6 +53,8 @@ STABILITY_GRAD_TOL = 1e-10  # a stationary point: max_i |ln W_i + ln phi_i(w) - 
 SS_STEPS = 8  # successive-substitution steps before Newton's method
 NEWTON_STEPS = 40
 PURE_TRACE = 1e-6  # weight of the other components in a nearly pure trial (relative to their feed fractions)
+TRIVIAL_RADIUS2 = 0.1  # early exit: sum_i (ln W_i - ln W*_i)^2 below this (every |ln W_i - ln W*_i| < 0.32)
+TRIVIAL_MARGIN = 0.25  # ... near a W* (z or a trial's minimum) whose scaled Hessian of tm minus this I is pos. def.
 
 # status of a test
 STABILITY_OK = 0  # every trial converged (to the trivial solution or to a stationary point)
@@ -81,6 +86,61 @@ def _tpd_of(W, nc, present, lnphi, d):
             tpd += W[i] / wt * (g - math.log(wt))
             gmax = max(gmax, abs(g))
     return tm, tpd, wt, gmax
+
+
+@kernel
+def _tpd_ln(W, ln_W, nc, present, lnphi, d):
+    """As ``_tpd_of`` with ln W_i given (``ln_W``): no logarithm per component."""
+    wt = 0.0
+    for i in range(nc):
+        if present[i]:
+            wt += W[i]
+    lwt = math.log(wt)
+    tm = 1.0
+    tpd = 0.0
+    gmax = 0.0
+    for i in range(nc):
+        if present[i] and W[i] > 0.0:
+            g = ln_W[i] + lnphi[i] - d[i]
+            tm += W[i] * (g - 1.0)
+            tpd += W[i] / wt * (g - lwt)
+            gmax = max(gmax, abs(g))
+    return tm, tpd, wt, gmax
+
+
+@kernel
+def _near_known(ln_W, tm, nc, present, known, known_tm, n_known):
+    """True when the trial (ln W, tm) lies within TRIVIAL_RADIUS2 of a known local minimum of tm (a row of
+    ``known``, ln W there; the first is the tested phase itself) with tm not below that minimum's tm."""
+    for r in range(n_known):
+        if tm < known_tm[r]:
+            continue
+        s = 0.0
+        for i in range(nc):
+            if present[i]:
+                e = ln_W[i] - known[r, i]
+                s += e * e
+        if s < TRIVIAL_RADIUS2:
+            return True
+    return False
+
+
+@kernel
+def locally_stable(nc, present, W, wt, jac, margin, H, L, x):
+    """True when W (unnormalised, total ``wt``; a stationary point of tm, e.g. the tested phase z itself with
+    wt = 1) is a strict local minimum of tm with room to spare: the scaled Hessian of tm there,
+    H_ij = delta_ij + sqrt(W_i W_j) n d ln phi_i / d n_j / W_T (``jac`` at w = W / W_T; the Newton matrix of
+    ``_one_trial`` where G = 0; Michelsen & Mollerup 2007, ch. 9), minus ``margin`` times the identity, is
+    positive definite (its Cholesky factorisation exists). ``H``, ``L``, ``x`` are scratch."""
+    for i in range(nc):
+        x[i] = 0.0
+        if not present[i]:
+            continue
+        for j in range(nc):
+            if present[j]:
+                H[i, j] = math.sqrt(W[i] * W[j]) * jac[i, j] / wt
+        H[i, i] += 1.0 - margin
+    return _cholesky_solve(H, x, nc, present, L, x)
 
 
 @kernel
@@ -138,39 +198,50 @@ def _cholesky_solve(H, g, nc, present, L, x):
 
 @kernel
 def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratch, H, L, alpha, step, W_try,
-               best_w, best):
-    """Seek a stationary point of tm from the trial W (overwritten). ``best`` = [lowest tpd met, its Z, its
-    root]; ``best_w`` the composition where it was met (updated only when lower). Returns (converged,
-    iterations)."""
+               best_w, best, ln_W, known, known_tm, n_known):
+    """Seek a stationary point of tm from the trial W (overwritten; ``ln_W``: ln W, kept up to date). ``best`` =
+    [lowest tpd met, its Z, its root]; ``best_w`` the composition where it was met (updated only when lower). The trial
+    stops early (as converged) once it lies within TRIVIAL_RADIUS2 of one of the first ``n_known`` rows of
+    ``known`` (local minima of tm with a margin, see ``stability_states``). Returns (converged, iterations,
+    stopped early)."""
     nc = d.shape[0]
     _normalise(W, nc, present, w)
-    z, root = ln_phi_tp(code, T, P, w, aij, bi, consts, lnphi)
+    scratch[2, 0] = 0.0  # no root hint for the start
+    z, root = ln_phi_hinted_tp(code, T, P, w, aij, bi, consts, lnphi, scratch)
     if root == ROOT_INVALID:
-        return False, 0
+        return False, 0, False
     iterations = 0
-    tm, tpd, wt, gmax = _tpd_of(W, nc, present, lnphi, d)
+    tm, tpd, wt, gmax = _tpd_ln(W, ln_W, nc, present, lnphi, d)
     if tpd < best[0]:
         best[0], best[1], best[2] = tpd, z, root
         _copy(w, best_w)
     for _ in range(SS_STEPS):
         if gmax < STABILITY_GRAD_TOL:
-            return True, iterations
+            return True, iterations, False
+        if _near_known(ln_W, tm, nc, present, known, known_tm, n_known):
+            return True, iterations, True
         for i in range(nc):
-            W[i] = math.exp(d[i] - lnphi[i]) if present[i] else 0.0
+            if present[i]:
+                ln_W[i] = d[i] - lnphi[i]
+                W[i] = math.exp(ln_W[i])
+            else:
+                W[i] = 0.0
         _normalise(W, nc, present, w)
-        z, root = ln_phi_tp(code, T, P, w, aij, bi, consts, lnphi)
+        z, root = ln_phi_hinted_tp(code, T, P, w, aij, bi, consts, lnphi, scratch)
         iterations += 1
         if root == ROOT_INVALID or not math.isfinite(z):
-            return False, iterations
-        tm, tpd, wt, gmax = _tpd_of(W, nc, present, lnphi, d)
+            return False, iterations, False
+        tm, tpd, wt, gmax = _tpd_ln(W, ln_W, nc, present, lnphi, d)
         if tpd < best[0]:
             best[0], best[1], best[2] = tpd, z, root
             _copy(w, best_w)
     if code != MODEL_CUBIC and code != MODEL_VIRIAL:
-        return gmax < STABILITY_GRAD_TOL, iterations
+        return gmax < STABILITY_GRAD_TOL, iterations, False
     for _ in range(NEWTON_STEPS):
         if gmax < STABILITY_GRAD_TOL:
-            return True, iterations
+            return True, iterations, False
+        if _near_known(ln_W, tm, nc, present, known, known_tm, n_known):
+            return True, iterations, True
         z, root = ln_phi_dn_tp(code, T, P, w, aij, bi, consts, lnphi, jac, scratch)
         for i in range(nc):
             if present[i]:
@@ -197,7 +268,7 @@ def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratc
                 if present[i]:
                     H[i, i] += add
         if not solved:
-            return False, iterations
+            return False, iterations, False
         x = scratch[0]
         t = 1.0
         accepted = False
@@ -209,7 +280,7 @@ def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratc
                 else:
                     W_try[i] = 0.0
             _normalise(W_try, nc, present, w)
-            z, root = ln_phi_tp(code, T, P, w, aij, bi, consts, lnphi)
+            z, root = ln_phi_hinted_tp(code, T, P, w, aij, bi, consts, lnphi, scratch)
             if root != ROOT_INVALID and math.isfinite(z):
                 tm_new, tpd_new, wt_new, g_new = _tpd_of(W_try, nc, present, lnphi, d)
                 if math.isfinite(tm_new) and tm_new <= tm + 1e-14 * max(1.0, abs(tm)):
@@ -219,45 +290,78 @@ def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratc
         iterations += 1
         if not accepted:
             _normalise(W, nc, present, w)
-            z, root = ln_phi_tp(code, T, P, w, aij, bi, consts, lnphi)
-            return gmax < 1e3 * STABILITY_GRAD_TOL, iterations
+            z, root = ln_phi_hinted_tp(code, T, P, w, aij, bi, consts, lnphi, scratch)
+            return gmax < 1e3 * STABILITY_GRAD_TOL, iterations, False
         _copy(W_try, W)
+        for i in range(nc):
+            ln_W[i] = math.log(W[i]) if present[i] else 0.0
         tm, tpd, wt, gmax = tm_new, tpd_new, wt_new, g_new
         if tpd < best[0]:
             best[0], best[1], best[2] = tpd, z, root
             _copy(w, best_w)
-    return gmax < STABILITY_GRAD_TOL, iterations
+    return gmax < STABILITY_GRAD_TOL, iterations, False
 
 
 @kernel
-def _trial_start(kind, T, P, z, present, comp, heaviest, W):
-    """Initial W of trial ``kind`` (see ``TRIAL_*``)."""
+def _trial_start(kind, T, P, z, ln_z, present, comp, heaviest, W, ln_W):
+    """Initial W of trial ``kind`` (see ``TRIAL_*``) and its ln W over the present components (``ln_z``: ln of
+    the tested composition there)."""
     nc = z.shape[0]
     for i in range(nc):
         W[i] = 0.0
+        ln_W[i] = 0.0
     if kind == TRIAL_WILSON_VAPOUR or kind == TRIAL_WILSON_LIQUID:
         for i in range(nc):
             if present[i]:
                 tc, pc, _, _ = effective_critical(T, comp, i)
                 lnk = math.log(pc / P) + 5.373 * (1.0 + comp[i, OMEGA]) * (1.0 - tc / T)
                 lnk = min(max(lnk, -200.0), 200.0)
-                W[i] = z[i] * math.exp(lnk if kind == TRIAL_WILSON_VAPOUR else -lnk)
+                ln_W[i] = ln_z[i] + (lnk if kind == TRIAL_WILSON_VAPOUR else -lnk)
+                W[i] = math.exp(ln_W[i])
         return
     target = heaviest if kind == TRIAL_HEAVIEST else kind - TRIAL_PURE0
+    ln_trace = math.log(PURE_TRACE)
     for i in range(nc):
         if present[i]:
             W[i] = PURE_TRACE * z[i]
+            ln_W[i] = ln_trace + ln_z[i]
     W[target] = 1.0
+    ln_W[target] = 0.0
 
 
 @entry
-def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, ints):
+def stability_states(code, T, P, Z, comp, consts, kmat, screen, exits, trials, floats, ints):
     """Stability test of the states (T[k] [K], P[k] [Pa], Z[k] mole fractions) of one model: for each state
     ``trials[k]`` gets the trial composition of lowest tpd met (the tested composition itself when no trial
     went below it), ``floats[k]`` = (tpd, Z of that trial, Z of the tested phase) and ``ints[k]`` = (status,
     trial kind or TRIAL_NONE, iterations, root of the trial, root of the tested phase). With ``screen`` a cubic
     state whose present components all lie above their (k_ij-widened) critical bound (``one_root_everywhere``)
-    is not tested (status STABILITY_SCREENED). Serial; allocates its work buffers once."""
+    is not tested (status STABILITY_SCREENED). With ``exits`` a trial stops early once it heads for the trivial
+    solution (below); without, every trial runs to convergence (the exhaustive form the tests compare against).
+    Serial; allocates its work buffers once.
+
+    Early exits (issue 12). Stopping a trial that approaches the trivial solution is common practice (Michelsen &
+    Mollerup 2007, ch. 9); the criterion here is our own. A trial stops, counted as converged, when its current
+    W lies near a known local minimum W* of tm and can only end there:
+      (a) W* is the tested phase z (tm = 0), or a stationary point an earlier trial of the same state converged
+          to; in both cases the scaled Hessian of tm there, H*_ij = delta_ij + sqrt(W*_i W*_j) n d ln phi_i /
+          d n_j / W*_T (the Newton matrix of ``_one_trial`` at G = 0), minus TRIVIAL_MARGIN = 0.25 times the
+          identity is positive definite (``locally_stable``: one derivative evaluation per state and per new
+          minimum);
+      (b) sum_i (ln W_i - ln W*_i)^2 < TRIVIAL_RADIUS2 = 0.1 (every |ln W_i - ln W*_i| < 0.32);
+      (c) tm(W) >= tm(W*) (for z: tm >= 0; the trial has met no lower point near W*).
+    Why this hides no instability: the Hessian of tm in alpha_i = 2 sqrt(W_i) is, at any W, exactly
+    H_ij = delta_ij (1 + G_i / 2) + sqrt(W_i W_j) n d ln phi_i / d n_j / W_T with G_i = ln W_i + ln phi_i(w) -
+    d_i (same reference), so from W* to a point of the ball (b) its diagonal moves by half of
+    ln W_i - ln W*_i (at most 0.16) plus half the change of ln phi_i, and the second term by the change of the
+    fugacity-coefficient derivatives over that composition change. While those changes stay below the margin
+    (an assumption on the model's smoothness over a composition change of about 30 %, not a proof) tm is
+    convex over the ball: W* is its only stationary point there, with the lowest tm, so the trial could leave
+    the ball only by raising tm (the damped Newton steps never do; successive substitution's linear map near W*,
+    I - H*, contracts while the eigenvalues of H* lie between 0.25 and 2) and otherwise ends at W*, whose tpd
+    is already on record. Where z is near its stability limit (an eigenvalue of H below 0.25: near a spinodal
+    or a critical point) no trial stops near z. The verdicts and the lowest tpd are checked against the
+    exhaustive form and against random trial compositions (tests/properties/test_stability_exits.py)."""
     n, nc = Z.shape
     aij = np.empty((nc, nc))
     daij = np.empty((nc, nc))
@@ -276,6 +380,10 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
     step = np.empty(nc)
     W_try = np.empty(nc)
     best = np.empty(3)
+    ln_W = np.zeros(nc)
+    ln_z = np.zeros(nc)
+    known = np.zeros((TRIAL_PURE0 + nc + 1, nc))  # ln W at the local minima of tm met so far in a state
+    known_tm = np.zeros(TRIAL_PURE0 + nc + 1)
     t_prev = -1.0
     for k in range(n):
         T_k = T[k]
@@ -287,7 +395,10 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
         floats[k, F_TPD] = 0.0
         ints[k, I_TRIAL] = TRIAL_NONE
         ints[k, I_ITERATIONS] = 0
-        zf, rootf = ln_phi_tp(code, T_k, P[k], z, aij, bi, consts, lnphi)
+        if exits:  # with n d ln phi_i / d n_j for the local-stability check below (jac)
+            zf, rootf = ln_phi_dn_tp(code, T_k, P[k], z, aij, bi, consts, lnphi, jac, scratch)
+        else:
+            zf, rootf = ln_phi_tp(code, T_k, P[k], z, aij, bi, consts, lnphi)
         floats[k, F_FEED_Z] = zf
         floats[k, F_TRIAL_Z] = zf
         ints[k, I_FEED_ROOT] = _label(T_k, P[k], z, bi, zf, rootf)
@@ -304,16 +415,24 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
             present[i] = z[i] > 0.0
             if present[i]:
                 n_present += 1
-                d[i] = math.log(z[i]) + lnphi[i]
+                ln_z[i] = math.log(z[i])
+                d[i] = ln_z[i] + lnphi[i]
                 if heaviest < 0 or comp[i, TC] > comp[heaviest, TC]:
                     heaviest = i
             else:
                 d[i] = 0.0
+                ln_z[i] = 0.0
         if n_present < 2:
             continue  # one component: no other composition to split into
         if screen and code == MODEL_CUBIC and one_root_everywhere(T_k, aij, bi, consts, present):
             ints[k, I_STATUS] = STABILITY_SCREENED
             continue
+        n_known = 0
+        if exits:
+            if locally_stable(nc, present, z, 1.0, jac, TRIVIAL_MARGIN, H, L, alpha):
+                known[0, :] = ln_z
+                known_tm[0] = 0.0
+                n_known = 1
         best[0] = 0.0
         best[1] = zf
         best[2] = rootf
@@ -324,11 +443,23 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, trials, floats, 
                 continue
             if kind >= TRIAL_PURE0 and kind - TRIAL_PURE0 == heaviest:
                 continue  # the same start as TRIAL_HEAVIEST
-            _trial_start(kind, T_k, P[k], z, present, comp, heaviest, W)
+            _trial_start(kind, T_k, P[k], z, ln_z, present, comp, heaviest, W, ln_W)
             before = best[0]
-            converged, its = _one_trial(code, T_k, P[k], d, present, aij, bi, consts, W, w, lnphi, jac, scratch,
-                                        H, L, alpha, step, W_try, trials[k], best)
+            converged, its, early = _one_trial(code, T_k, P[k], d, present, aij, bi, consts, W, w, lnphi, jac,
+                                               scratch, H, L, alpha, step, W_try, trials[k], best, ln_W, known,
+                                               known_tm, n_known)
             total += its
+            if exits and converged and not early and n_known < known.shape[0]:
+                # a new stationary point: later trials may stop near it if it is a local minimum with a margin
+                tm, _, wt, _ = _tpd_ln(W, ln_W, nc, present, lnphi, d)
+                if not _near_known(ln_W, math.inf, nc, present, known, known_tm, n_known):
+                    zt, roott = ln_phi_dn_tp(code, T_k, P[k], w, aij, bi, consts, lnphi, jac, scratch)
+                    if roott != ROOT_INVALID and locally_stable(nc, present, W, wt, jac, TRIVIAL_MARGIN, H, L,
+                                                                alpha):
+                        for i in range(nc):
+                            known[n_known, i] = ln_W[i]
+                        known_tm[n_known] = tm
+                        n_known += 1
             if best[0] < before and best[0] < -STABILITY_TPD_TOL:
                 ints[k, I_TRIAL] = kind
             if not converged:

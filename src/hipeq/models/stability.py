@@ -113,18 +113,19 @@ class StabilityResult:
         return f"StabilityResult({n} states, {n - int(np.count_nonzero(self.stable))} unstable)"
 
 
-def run_states(model: CompiledModel, T: np.ndarray, P: np.ndarray, Y: np.ndarray, screen: bool = False
-               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def run_states(model: CompiledModel, T: np.ndarray, P: np.ndarray, Y: np.ndarray, screen: bool = False,
+               exhaustive: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The compiled test on flat arrays (T [K], P [Pa], Y (n, nc) mole fractions, already checked): returns
     (trials (n, nc), floats (n, 3), ints (n, 5)) as laid out in ``hipeq.models._stability``. ``screen``: skip
-    states where the cubic has one volume root at every composition of the present components."""
+    states where the cubic has one volume root at every composition of the present components. ``exhaustive``:
+    run every trial to convergence, without the trivial-solution exit (slower, the same verdicts; for tests)."""
     n, nc = Y.shape
     trials = np.empty((n, nc))
     floats = np.empty((n, S.N_FLOAT))
     ints = np.empty((n, S.N_INT), dtype=np.int64)
     S.stability_states(model.code, np.ascontiguousarray(T, dtype=float), np.ascontiguousarray(P, dtype=float),
                        np.ascontiguousarray(Y, dtype=float), np.asarray(model.comp), np.asarray(model.consts),
-                       np.asarray(model.kmat), bool(screen), trials, floats, ints)
+                       np.asarray(model.kmat), bool(screen), not exhaustive, trials, floats, ints)
     return trials, floats, ints
 
 
