@@ -340,7 +340,7 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, exits, trials, f
     solution (below); without, every trial runs to convergence (the exhaustive form the tests compare against).
     Serial; allocates its work buffers once.
 
-    Early exits (issue 12). Stopping a trial that approaches the trivial solution is common practice (Michelsen &
+    Early exits. Stopping a trial that approaches the trivial solution is common practice (Michelsen &
     Mollerup 2007, ch. 9); the criterion here is our own. A trial stops, counted as converged, when its current
     W lies near a known local minimum W* of tm and can only end there:
       (a) W* is the tested phase z (tm = 0), or a stationary point an earlier trial of the same state converged
