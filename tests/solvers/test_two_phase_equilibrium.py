@@ -45,6 +45,9 @@ def test_methanol_reproducer_one_answer_two_phases_alone_and_in_any_batch():
         for a, b in zip(batch.phases[i], one.phases):
             np.testing.assert_allclose(a.mole_fractions, b.mole_fractions, rtol=0, atol=1e-12)
         assert "two phases" in one.message and "two phases" in batch.message(i)
+    # the batch with its split states keeps the solver's per-state screen (the one-phase batch's flags)
+    screen = s.equilibrium(feed=REPRODUCER, T=324.66, P=P, phases="one")._may_split
+    assert batch._may_split is not None and np.array_equal(batch._may_split, screen)
 
 
 @pytest.mark.parametrize("T, P", [(423.15, 300e5), (473.15, 100e5), (313.15, 80e5)])

@@ -614,8 +614,9 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
               ln_k_user: np.ndarray, guess: np.ndarray, opts: Options, row: np.ndarray, ints: np.ndarray) -> None:
     """One state (the scalar path): answers in ``row`` (float, ``answer_layout``) and ``ints`` (INT_COLUMNS).
 
-    Solved as a chunk of one state by the compiled ``_solve_chunk``, called from here (Python) with arrays of the
-    types ``solve_many`` hands it: the scalar and the batch path then share one compiled solver. (``solve_state``
+    Solved as a chunk of one state by the compiled ``_solve_chunk``, called from here (Python, through
+    ``_solve_chunk_direct``: its machine code once the argument types are known) with arrays of the types
+    ``solve_many`` hands it: the scalar and the batch path then share one compiled solver. (``solve_state``
     is compiled into its caller, and compiling it was most of a first call's time; a compiled wrapper around
     the chunk would compile the whole solver a second time, as numba optimises each function together with
     everything it calls.) The first state of a chunk is solved exactly as a lone state: new temperature, no

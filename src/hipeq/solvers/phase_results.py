@@ -10,7 +10,9 @@ result's H, S, U are their sums and h_res, s_res their amount-weighted means (:m
 """
 from __future__ import annotations
 
+import dataclasses
 import math
+from collections.abc import Mapping
 from typing import Any, NamedTuple
 
 import numpy as np
@@ -268,7 +270,6 @@ def split_unstable(system: Any, result: Any, unstable: np.ndarray | None = None)
     (screened) stability test (:func:`unstable_states`, or the flat indices ``unstable`` when the caller has
     them) replaced by its two-phase answer, when that converged and lowered the Gibbs energy. Returns the same
     object when nothing changed."""
-    import dataclasses
     import functools
 
     from hipeq.solvers.result import EquilibriumResult
@@ -313,29 +314,38 @@ def split_unstable(system: Any, result: Any, unstable: np.ndarray | None = None)
     shape = status.shape
 
     def replaced(values: Any, key: str) -> np.ndarray:
-        array = np.array(values, copy=True)
-        flat = array.reshape(n_states, -1) if array.ndim > len(shape) else array.reshape(n_states)
-        for k, (_, f) in answers.items():
-            flat[k] = f[key]
-        array.flags.writeable = False
-        return array
+        return state_rows(values, shape, {k: f[key] for k, (_, f) in answers.items()})
 
-    new = dataclasses.replace(
+    new = rebuilt_batch(
         result, V=replaced(result.V, "V"), Z=replaced(result.Z, "Z"), G_RT=replaced(result.G_RT, "G_RT"),
         _amounts=replaced(result._amounts, "amounts"), _y=replaced(result._y, "y"),
         _ln_phis=replaced(result._ln_phis, "ln_phis"), extents=replaced(result.extents, "extents"),
         residuals=replaced(result.residuals, "residuals"), _element_res=replaced(result._element_res, "element_res"),
-        liquid_like=_set(result.liquid_like, answers, True), _roots=_set(result._roots, answers, -2))
+        liquid_like=state_rows(result.liquid_like, shape, dict.fromkeys(answers, True)),
+        _roots=state_rows(result._roots, shape, dict.fromkeys(answers, -2)))
     object.__setattr__(new, "_phase_data", {k: a for k, (a, _) in answers.items()})
     return new
 
 
-def _set(values: np.ndarray, answers: dict[int, Any], value: Any) -> np.ndarray:
+def state_rows(values: Any, shape: tuple[int, ...], updates: Mapping[int, Any]) -> np.ndarray:
+    """A read-only copy of a batch's per-state array (``shape``, or ``shape`` plus one axis per state) with the
+    states of ``updates`` (flat index -> new value or row) replaced."""
+    n_states = int(np.prod(shape, dtype=np.int64)) if shape else 1
     array = np.array(values, copy=True)
-    for k in answers:
-        array.reshape(-1)[k] = value
+    flat = array.reshape(n_states, -1) if array.ndim > len(shape) else array.reshape(n_states)
+    for k, value in updates.items():
+        flat[k] = value
     array.flags.writeable = False
     return array
+
+
+def rebuilt_batch(result: Any, **fields: Any) -> Any:
+    """``dataclasses.replace`` of a BatchResult that keeps the solver's per-state vapour-liquid screen
+    (``_may_split``, not a dataclass field), so that a later stability question still skips the states where no
+    split is possible."""
+    new = dataclasses.replace(result, **fields)
+    object.__setattr__(new, "_may_split", result._may_split)
+    return new
 
 
 def _frozen(array: np.ndarray) -> np.ndarray:

@@ -38,7 +38,6 @@ engineering practice.
 """
 from __future__ import annotations
 
-import dataclasses
 import functools
 import math
 from dataclasses import dataclass
@@ -52,7 +51,8 @@ from hipeq.models import _kernels as K
 from hipeq.models.inputs import P_MAX
 from hipeq.solvers import _common as C
 from hipeq.solvers._arrays import METHOD_NAMES
-from hipeq.solvers.phase_results import split_unstable, two_phase_answer, unstable_states
+from hipeq.solvers.phase_results import (rebuilt_batch, split_unstable, state_rows, two_phase_answer,
+                                         unstable_states)
 
 __all__ = ["fill_vessels", "VesselSearch", "search_vessel", "P_FLOOR", "VOLUME_RTOL", "FUGACITY_TOL"]
 
@@ -258,22 +258,15 @@ def _scalar(result: Any, search: VesselSearch | None, note: str | None, V: float
 
 def _batch(result: Any, found: dict[int, VesselSearch], notes: dict[int, str], V: np.ndarray) -> Any:
     shape = np.shape(result.status)
-    n_states = int(np.prod(shape, dtype=np.int64)) if shape else 1
 
     def replaced(values: Any, pick: Any, others: dict[int, Any] | None = None) -> np.ndarray:
-        array = np.array(values, copy=True)
-        flat = array.reshape(n_states, -1) if array.ndim > len(shape) else array.reshape(n_states)
-        for k, search in found.items():
-            flat[k] = pick(k, search.answer)
-        for k, value in (others or {}).items():
-            flat[k] = value
-        array.flags.writeable = False
-        return array
+        return state_rows(values, shape, {**{k: pick(k, search.answer) for k, search in found.items()},
+                                          **(others or {})})
 
     def field(name: str) -> Any:
         return lambda k, a: np.asarray(getattr(a, name))
 
-    new = dataclasses.replace(
+    new = rebuilt_batch(
         result, P=replaced(result.P, field("P")), V=replaced(result.V, lambda k, a: V[k]),
         Z=replaced(result.Z, field("Z")), G_RT=replaced(result.G_RT, field("G_RT")),
         _amounts=replaced(result._amounts, field("_amounts")), _y=replaced(result._y, field("_y")),
@@ -289,7 +282,6 @@ def _batch(result: Any, found: dict[int, VesselSearch], notes: dict[int, str], V
         _methods=replaced(result._methods, lambda k, a: METHOD_NAMES.index(a.method)),
         _roots=replaced(result._roots, lambda k, a: _ROOT_CODES.get(a.root, -1)),
         liquid_like=replaced(result.liquid_like, field("liquid_like")))
-    object.__setattr__(new, "_may_split", result._may_split)
     data = dict(result.__dict__.get("_phase_data") or {})
     data.update({k: s.answer.__dict__["_phase_data"][0] for k, s in found.items()
                  if s.answer.__dict__.get("_phase_data")})
