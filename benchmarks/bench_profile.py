@@ -162,40 +162,6 @@ def run(ctx: Context) -> list[Row]:
         piece_ns[label] = t * 1e9
         rows.append(Row(NAME, label, t * 1e9, "ns", note="serial loop, benchmarks/solver_loops.py"))
     details["pieces_ns"] = piece_ns
-    # fixed cost of a state: solve_state from a cold start, then again started at its own answer (0 iterations)
-    try:
-        numba.set_num_threads(1)
-        captured: dict[str, tuple] = {}
-        inner = D.solve_many
-        D.solve_many = lambda *args: (captured.setdefault("args", args), inner(*args))[1]
-        try:
-            system.equilibrium(feed=feed, T=T, P=P)
-        finally:
-            D.solve_many = inner
-        a = loops.solve_state_arguments(captured["args"])
-        if a is None:
-            raise RuntimeError("solve_state / solve_many signatures changed; skipped")
-        loop = loops.make_solve_state_loop()
-        nr, ne = a["nu"].shape[0], max(a["A"].shape[0], a["pg_Q"].shape[1])
-        call = [a["static"], nr, ne, a["A"].shape[0], a["T"], a["PV"], a["N0"], a["pats"], a["opts_i"], a["opts_f"]]
-        cold_its = loop(*call, 0) / n
-        t_cold = best_time(lambda: loop(*call, 0), repeat, clock="cpu") / n
-        t_both = best_time(lambda: loop(*call, 1), repeat, clock="cpu") / n
-        fixed = (t_both - t_cold) * 1e9
-        per_iteration = (t_cold * 1e9 - fixed) / cold_its
-        rows += [
-            Row(NAME, "state solved from its own answer (0 Newton steps)", fixed, "ns",
-                note="tparams + g0 + one evaluation + bookkeeping: the fixed cost of a state"),
-            Row(NAME, "one Newton iteration (cold starts)", per_iteration, "ns",
-                note=f"{cold_its:.2f} iterations/state from a cold start"),
-        ]
-        details["fixed_state_ns"] = fixed
-        details["per_iteration_ns"] = per_iteration
-        details["cold_iterations"] = cold_its
-    except Exception as exc:  # private signatures move; keep the other figures
-        details["fixed_state_error"] = repr(exc)
-    finally:
-        numba.set_num_threads(numba.config.NUMBA_NUM_THREADS)
 
     # cost model: one evaluation per Newton iteration plus one at the start, tparams + g0 per state
     for label in ("random order", "sorted by T, P"):

@@ -26,7 +26,7 @@ import time
 _NAME = re.compile(r"hipeq\w*?\d+(\w+?)\d*B\d+")
 
 
-def write_map(entry_points: tuple[str, ...] = ("_solve_chunks", "_solve_chunk")) -> int:
+def write_map(entry_points: tuple[str, ...] = ("solve_chunk",)) -> int:
     """Write /tmp/perf-<pid>.map for every function linked into hipeq's compiled entry points; returns the
     number of functions named."""
     from numba.core.registry import CPUDispatcher
@@ -36,7 +36,9 @@ def write_map(entry_points: tuple[str, ...] = ("_solve_chunks", "_solve_chunk"))
     for module_name, module in list(sys.modules.items()):
         if not module_name.startswith("hipeq"):
             continue
-        for obj in list(vars(module).values()):
+        candidates = list(vars(module).values())
+        candidates += [call._dispatcher for call in getattr(module, "_PATHS", {}).values()]  # the chunk solvers
+        for obj in candidates:
             if not (isinstance(obj, CPUDispatcher) and obj.__name__ in entry_points):
                 continue
             for cres in obj.overloads.values():

@@ -33,8 +33,10 @@ ERROR_MODEL = "numpy"  # x / 0.0 -> inf or NaN (caught by the kernels' finitenes
 
 
 def kernel(fn: F) -> F:
-    """Compile ``fn`` as an allocation-free kernel: ``njit(cache=True, _nrt=False, fastmath=FASTMATH)``."""
-    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH), error_model=ERROR_MODEL)(fn)
+    """Compile ``fn`` as an allocation-free kernel: ``njit(cache=True, _nrt=False, fastmath=FASTMATH,
+    nogil=True)``. Called from Python it releases the GIL, so that Python threads run kernels side by side (the
+    batch solver's chunks, ``hipeq.solvers._driver.solve_many``)."""
+    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH), error_model=ERROR_MODEL, nogil=True)(fn)
 
 
 def inline_kernel(fn: F) -> F:
@@ -52,13 +54,6 @@ def entry(fn: F) -> F:
 def parallel_entry(fn: F) -> F:
     """As :func:`entry`, with ``parallel=True``: ``numba.prange`` loops run on numba's thread pool."""
     return njit(cache=True, parallel=True, error_model=ERROR_MODEL)(fn)
-
-
-def threaded_entry(fn: F) -> F:
-    """As :func:`entry`, without the GIL (``nogil=True``): for entry points that Python threads run side by side
-    (``hipeq.solvers._driver.solve_many``). Unlike :func:`parallel_entry` it compiles its callees only once more
-    (numba's parallel lowering builds a kernel and a wrapper that each recompile everything they call)."""
-    return njit(cache=True, nogil=True, error_model=ERROR_MODEL)(fn)
 
 
 class DirectCall:

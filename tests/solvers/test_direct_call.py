@@ -31,11 +31,23 @@ class Recorder(DirectCall):
         return super().__call__(keys, *args)
 
 
+class Recorders(dict):
+    """One Recorder per solver path (``_driver._PATHS``), with the calls of all of them."""
+
+    @property
+    def seen(self) -> dict[tuple[int, ...], set]:
+        merged: dict[tuple[int, ...], set] = {}
+        for path, rec in self.items():
+            for key, signatures in rec.seen.items():
+                merged.setdefault((path, *key), set()).update(signatures)
+        return merged
+
+
 @pytest.fixture
 def recorder(monkeypatch):
-    rec = Recorder(D._solve_chunk)
-    monkeypatch.setattr(D, "_solve_chunk_direct", rec)
-    return rec
+    recorders = Recorders({path: Recorder(call._dispatcher) for path, call in D._PATHS.items()})
+    monkeypatch.setattr(D, "_PATHS", recorders)
+    return recorders
 
 
 def _ln_k(system):
@@ -58,6 +70,8 @@ def test_argument_types_follow_from_the_keys(recorder):
             system.equilibrium(feed, T=700.0, V=1e-3, **kwargs)
             system.equilibrium(dict(feed, Ar=0.0) if "Ar" in feed else feed, T=720.0, P=3e7, **kwargs)
     assert recorder.seen, "the scalar path no longer goes through DirectCall"
+    used = {key[0] for key in recorder.seen}
+    assert used == set(D._PATHS), f"paths never called: {set(D._PATHS) - used}"
     for key, signatures in recorder.seen.items():
         assert len(signatures) == 1, f"calls with the same keys had {len(signatures)} argument signatures"
 
@@ -72,7 +86,7 @@ def test_direct_call_equals_the_dispatcher(monkeypatch):
         def __call__(self, keys, *args):
             return self._dispatcher(*args)
 
-    monkeypatch.setattr(D, "_solve_chunk_direct", Plain(D._solve_chunk))
+    monkeypatch.setattr(D, "_PATHS", {path: Plain(call._dispatcher) for path, call in D._PATHS.items()})
     plain = [system.equilibrium(FEED, T=T, P=P) for T, P in states] * 2
     for a, b in zip(direct, plain):
         assert a.status == b.status == 0
@@ -88,6 +102,7 @@ def test_a_new_pattern_snapshot_gets_its_own_entry():
                                                                                         T=700.0, P=2e7)
     again = system.equilibrium({"N2": 1.0, "H2": 3.0}, T=700.0, P=2e7)
     assert np.array_equal(again.amounts.array, alone.amounts.array)
-    if hasattr(D._solve_chunk, "overloads"):  # compiled (not under NUMBA_DISABLE_JIT)
+    at_pressure = D._PATHS[D.SolverPath(D.METHOD_EXTENT, False)]
+    if hasattr(at_pressure._dispatcher, "overloads"):  # compiled (not under NUMBA_DISABLE_JIT)
         patterns = system.compiled.pattern_for(0b11)[0]  # the snapshot now current (N2 and H2 fed: bits 0, 1)
-        assert (id(system.compiled.arrays), id(patterns)) in D._solve_chunk_direct._entries
+        assert (id(system.compiled.arrays), id(patterns)) in at_pressure._entries

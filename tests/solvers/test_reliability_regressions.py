@@ -253,6 +253,24 @@ def test_extent_singular_on_trace_oxygen_is_answered_by_gibbs() -> None:
     assert np.all(element_imbalance(s.species_names, feed_vector(s.species_names, feed), r.amounts.array) <= 1.0)
 
 
+def test_a_state_answered_by_gibbs_in_a_batch_is_its_scalar_answer() -> None:
+    """The fallback runs outside the compiled extent path (a state the extent method leaves SINGULAR is solved
+    again, alone, by the Gibbs path): in a batch, among states the extent method answers, the state gets bitwise
+    the answer of its scalar call, iteration counts included."""
+    s = hipeq.ReactionSystem(STEAM, eos="ideal")
+    feed = {"H2O": .01, "C2H6": 1.}
+    T = np.array([430., 430., 700., 430.])
+    P = np.array([20e5, 20e5, 20e5, 21e5])
+    b = s.equilibrium_batch(feed=feed, T=T, P=P)
+    assert "gibbs" in set(b.method)
+    for i in range(len(T)):
+        one = s.equilibrium(feed=feed, T=float(T[i]), P=float(P[i]))
+        assert int(b.status[i]) == one.status == 0, (i, one.message)
+        assert b.method[i] == one.method, i
+        assert np.array_equal(b.y.array[i], one.y.array), i
+        assert int(b.iterations[i]) == one.iterations and int(b.outer_iterations[i]) == one.outer_iterations, i
+
+
 # --------------------------------------------------------------------------------------------------------
 # 5. status 0 means every element balance closes (from scratch)
 # --------------------------------------------------------------------------------------------------------

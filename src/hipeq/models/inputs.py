@@ -89,7 +89,7 @@ def state_arrays(T: Any, P: Any, y: Any, names: tuple[str, ...]) -> StateArrays:
                               f"got shape {y_arr.shape}")
     if T_arr.ndim == 0 and P_arr.ndim == 0 and y_arr.ndim == 1:  # one state: the common, latency-bound case
         shape: tuple[int, ...] = ()
-        T_flat, P_flat, Y = T_arr.reshape(1), P_arr.reshape(1), y_arr.reshape(1, nc).copy()
+        T_flat, P_flat, Y = np.array(T_arr.reshape(1)), np.array(P_arr.reshape(1)), y_arr.reshape(1, nc).copy()
     else:
         try:
             shape = np.broadcast_shapes(T_arr.shape, P_arr.shape, y_arr.shape[:-1])
@@ -97,8 +97,10 @@ def state_arrays(T: Any, P: Any, y: Any, names: tuple[str, ...]) -> StateArrays:
             raise InputError("T, P, y", f"state shapes do not broadcast: T {T_arr.shape}, P {P_arr.shape}, "
                                         f"y {y_arr.shape} (y's last axis is the species axis)") from None
         n = int(np.prod(shape, dtype=np.int64))
-        T_flat = np.ascontiguousarray(np.broadcast_to(T_arr, shape).reshape(n))
-        P_flat = np.ascontiguousarray(np.broadcast_to(P_arr, shape).reshape(n))
+        # fresh writeable copies, as for one state (a read-only caller's array, or a broadcast view, would
+        # otherwise compile the state kernels a second time, for read-only arrays)
+        T_flat = np.array(np.broadcast_to(T_arr, shape).reshape(n), order="C")
+        P_flat = np.array(np.broadcast_to(P_arr, shape).reshape(n), order="C")
         Y = np.array(np.broadcast_to(y_arr, shape + (nc,)).reshape(n, nc), order="C", copy=True)
     if check_states(T_flat, P_flat, Y, T_MIN, T_MAX, P_MAX, SUM_TOLERANCE) != STATES_OK:
         _check_range(T_arr, "T", T_MIN, T_MAX, False, "K")

@@ -37,11 +37,12 @@ from __future__ import annotations
 import math
 import threading
 from concurrent.futures import ThreadPoolExecutor
+from typing import NamedTuple
 
 import numba
 import numpy as np
 
-from hipeq._jit import DirectCall, inline_kernel, kernel, threaded_entry
+from hipeq._jit import DirectCall, inline_kernel, kernel
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
 from hipeq.models.inputs import P_MAX
@@ -271,103 +272,123 @@ def _boundary_reason(code, at_ceiling, V, n_t, y, b_i):
     return REASON_ABOVE_CEILING
 
 
-@kernel
-def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
-                     tol, tol_g, tol_v, max_iter, w):
-    """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
-    (status, reason, iterations, outer, n_T, Z, root, P)."""
-    nc = n0.shape[0]
-    nr = w.extents.shape[0]
-    s_floor = math.log(P_FLOOR)
-    s_ceiling = math.log(P_CEILING)
-    s = math.log(P_guess) if P_guess > 0.0 else s_floor
-    if not (s >= s_floor):  # also NaN
-        s = s_floor
-    if s > s_ceiling:
-        s = s_ceiling
-    lo = s_floor
-    hi = s_ceiling
-    have_lo = False
-    have_hi = False
-    prev_s = 0.0
-    prev_h = 0.0
-    have_prev = False
-    total = 0
-    ln_v = math.log(V)
-    # remember the last good start so that a failed trial can restart from it (rows F_N_PREV, S_XI_START)
-    for i in range(nc):
-        w.n_prev[i] = w.n[i]
-    for r in range(nr):
-        w.extents_start[r] = w.extents[r]
-    n_t = 0.0
-    z = 1.0
-    root = 0
-    P = min(P_CEILING, max(P_FLOOR, math.exp(s)))
-    for k in range(MAX_PRESSURE_STEPS):
-        P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
-        status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
-                                                         active, consts, coupled, tol, tol_g, max_iter, w)
-        total += it
-        if status == NO_PHYSICAL_STATE:
-            # no state of the model at this pressure: treat it as "too high" and step back
-            hi = s
-            have_hi = True
-            for i in range(nc):
-                w.n[i] = w.n_prev[i]
-            for r in range(nr):
-                w.extents[r] = w.extents_start[r]
-            s = 0.5 * (s + lo) if have_lo else s - 1.0
-            have_prev = False
-            if s <= s_floor:
-                return PRESSURE_NOT_FOUND, REASON_NONE, total, k + 1, n_t, z, root, P
-            continue
-        if status != CONVERGED:
-            return status, REASON_NONE, total, k + 1, n_t, z, root, P
+def _volume_solver(method: int):
+    """The sealed-vessel solver of one equilibrium method (``method``: METHOD_EXTENT or METHOD_GIBBS, a constant
+    of the compiled code, so that each compiles only its own method's solver; see ``SolverPath``)."""
+
+    @kernel
+    def solve_at_volume(code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol, tol_g,
+                        tol_v, max_iter, w):
+        """Outer safeguarded secant on s = ln P, P_FLOOR <= P <= P_CEILING, for ln(n_T Z R T / P) = ln V. Returns
+        (status, reason, iterations, outer, n_T, Z, root, P)."""
+        nc = n0.shape[0]
+        nr = w.extents.shape[0]
+        s_floor = math.log(P_FLOOR)
+        s_ceiling = math.log(P_CEILING)
+        s = math.log(P_guess) if P_guess > 0.0 else s_floor
+        if not (s >= s_floor):  # also NaN
+            s = s_floor
+        if s > s_ceiling:
+            s = s_ceiling
+        lo = s_floor
+        hi = s_ceiling
+        have_lo = False
+        have_hi = False
+        prev_s = 0.0
+        prev_h = 0.0
+        have_prev = False
+        total = 0
+        ln_v = math.log(V)
+        # remember the last good start so that a failed trial can restart from it (rows F_N_PREV, S_XI_START)
         for i in range(nc):
             w.n_prev[i] = w.n[i]
         for r in range(nr):
             w.extents_start[r] = w.extents[r]
-        h = math.log(n_t * z * R * T / P) - ln_v
-        if abs(h) <= tol_v:
-            return CONVERGED, REASON_NONE, total, k + 1, n_t, z, root, P
-        if h > 0.0:
-            lo = s
-            have_lo = True
-        else:
-            hi = s
-            have_hi = True
-        if have_lo and have_hi and hi - lo < 1e-12:
-            # the bracket has closed on a jump of the volume: no single phase fills the vessel here
-            return PRESSURE_NOT_FOUND, REASON_NOT_ONE_PHASE, total, k + 1, n_t, z, root, P
-        slope = -1.0
-        if have_prev and s != prev_s:
-            slope = (h - prev_h) / (s - prev_s)
-            if not (slope < -1e-3):
-                slope = -1.0
-        step = -h / slope
-        step = min(2.0, max(-2.0, step))
-        s_new = s + step
-        if (have_lo and s_new <= lo) or (have_hi and s_new >= hi):
-            s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
-        if s_new >= s_ceiling:
-            if s >= s_ceiling:  # already at the ceiling and still too large a volume
-                reason = _boundary_reason(code, True, V, n_t, w.y, w.b_i)
-                return (PRESSURE_NOT_FOUND, reason, total, k + 1, n_t, z, root,
-                        P)
-            s_new = s_ceiling
-        elif s_new <= s_floor:
-            if s <= s_floor:
-                return PRESSURE_NOT_FOUND, REASON_BELOW_FLOOR, total, k + 1, n_t, z, root, P
-            s_new = s_floor
-        prev_s = s
-        prev_h = h
-        have_prev = True
-        s = s_new
-    reason = REASON_NOT_ONE_PHASE if (have_lo and have_hi) else REASON_NONE
-    return PRESSURE_NOT_FOUND, reason, total, MAX_PRESSURE_STEPS, n_t, z, root, P
+        n_t = 0.0
+        z = 1.0
+        root = 0
+        P = min(P_CEILING, max(P_FLOOR, math.exp(s)))
+        for k in range(MAX_PRESSURE_STEPS):
+            P = min(P_CEILING, max(P_FLOOR, math.exp(s)))  # exp(ln P) may round past a limit
+            status, it, _, n_t, z, root = _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null,
+                                                             active, consts, coupled, tol, tol_g, max_iter, w)
+            total += it
+            if status == NO_PHYSICAL_STATE:
+                # no state of the model at this pressure: treat it as "too high" and step back
+                hi = s
+                have_hi = True
+                for i in range(nc):
+                    w.n[i] = w.n_prev[i]
+                for r in range(nr):
+                    w.extents[r] = w.extents_start[r]
+                s = 0.5 * (s + lo) if have_lo else s - 1.0
+                have_prev = False
+                if s <= s_floor:
+                    return PRESSURE_NOT_FOUND, REASON_NONE, total, k + 1, n_t, z, root, P
+                continue
+            if status != CONVERGED:
+                return status, REASON_NONE, total, k + 1, n_t, z, root, P
+            for i in range(nc):
+                w.n_prev[i] = w.n[i]
+            for r in range(nr):
+                w.extents_start[r] = w.extents[r]
+            h = math.log(n_t * z * R * T / P) - ln_v
+            if abs(h) <= tol_v:
+                return CONVERGED, REASON_NONE, total, k + 1, n_t, z, root, P
+            if h > 0.0:
+                lo = s
+                have_lo = True
+            else:
+                hi = s
+                have_hi = True
+            if have_lo and have_hi and hi - lo < 1e-12:
+                # the bracket has closed on a jump of the volume: no single phase fills the vessel here
+                return PRESSURE_NOT_FOUND, REASON_NOT_ONE_PHASE, total, k + 1, n_t, z, root, P
+            slope = -1.0
+            if have_prev and s != prev_s:
+                slope = (h - prev_h) / (s - prev_s)
+                if not (slope < -1e-3):
+                    slope = -1.0
+            step = -h / slope
+            step = min(2.0, max(-2.0, step))
+            s_new = s + step
+            if (have_lo and s_new <= lo) or (have_hi and s_new >= hi):
+                s_new = 0.5 * (lo + hi) if (have_lo and have_hi) else (lo + 0.5 if s_new <= lo else hi - 0.5)
+            if s_new >= s_ceiling:
+                if s >= s_ceiling:  # already at the ceiling and still too large a volume
+                    reason = _boundary_reason(code, True, V, n_t, w.y, w.b_i)
+                    return PRESSURE_NOT_FOUND, reason, total, k + 1, n_t, z, root, P
+                s_new = s_ceiling
+            elif s_new <= s_floor:
+                if s <= s_floor:
+                    return PRESSURE_NOT_FOUND, REASON_BELOW_FLOOR, total, k + 1, n_t, z, root, P
+                s_new = s_floor
+            prev_s = s
+            prev_h = h
+            have_prev = True
+            s = s_new
+        reason = REASON_NOT_ONE_PHASE if (have_lo and have_hi) else REASON_NONE
+        return PRESSURE_NOT_FOUND, reason, total, MAX_PRESSURE_STEPS, n_t, z, root, P
+
+    return solve_at_volume
+
+
+_solve_at_volume_extent = _volume_solver(METHOD_EXTENT)
+_solve_at_volume_gibbs = _volume_solver(METHOD_GIBBS)
 
 
 @inline_kernel
+def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled, tol,
+                     tol_g, tol_v, max_iter, w):
+    """The sealed-vessel solver of ``method`` (a constant where this is compiled: only that one is called)."""
+    if method == METHOD_EXTENT:
+        return _solve_at_volume_extent(code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts,
+                                       coupled, tol, tol_g, tol_v, max_iter, w)
+    return _solve_at_volume_gibbs(code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n_null, active, consts, coupled,
+                                  tol, tol_g, tol_v, max_iter, w)
+
+
+@kernel
 def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
             T, n, ln_phi, mu, extents, y, b_i):
     """Write the current iterate (amounts, ln phi, potentials, extents of the work buffers) as a state's answer."""
@@ -417,7 +438,7 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
     ints[LIQUID] = 1 if liquid else 0
 
 
-@inline_kernel
+@kernel
 def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
     """Make every output finite whatever the status, write the element residuals of the answer, and hold a
     converged answer to what status 0 promises."""
@@ -448,26 +469,21 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
         ints[REASON] = REASON_ABOVE_CEILING if row[layout.P] > P_CEILING else REASON_BELOW_FLOOR
 
 
-@inline_kernel
-def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T, warm, work, row, ints):
-    """Solve one state; writes its float answer row ``row`` (``answer_layout``) and integer row ``ints``
-    (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT). ``new_T``: recompute the
-    temperature-dependent parameters; ``warm``: the work buffers (``work``, the chunk's Work) hold a converged
-    previous state of the same pattern (``n_prev``, ``n0_prev``, ``extents_prev``). Returns True when the
-    answer can warm-start the next state. Compiled into its callers
-    (one call site each)."""
-    w = work
+@kernel
+def _prepare_state(system, patterns, T, n0, pat, ln_k_user, opts, new_T, w):
+    """What a state's solve needs before its first start: the temperature-dependent model parameters and g0_i(T)
+    (only when ``new_T``: T differs from the previous state of the chunk), ln K (the caller's, if given: g0 is
+    then shifted to match it), and whether several stationary points may exist (``several_roots_possible``).
+    Returns (total feed [mol], roots)."""
     nc = n0.shape[0]
     nu = system.nu
     nr = nu.shape[0]
-    A = system.elements
-    layout = answer_layout(nc, nr, A.shape[0])
     code = system.model_code
-    consts = system.model_constants
     g0 = w.g0
     ln_k = w.ln_k
     if new_T:
-        tparams_into(code, T, system.components, consts, system.kij, w.a_ij, w.b_i, w.da_ij_dT, w.db_i_dT)
+        tparams_into(code, T, system.components, system.model_constants, system.kij, w.a_ij, w.b_i, w.da_ij_dT,
+                     w.db_i_dT)
         g0_into(T, system.g0_ln_t0, system.g0_step, system.g0_nodes, g0)
         if not opts.user_ln_k:
             for r in range(nr):
@@ -484,143 +500,239 @@ def solve_state(system, patterns, T, PV, n0, pat, ln_k_user, guess, opts, new_T,
     n_feed = 0.0
     for i in range(nc):
         n_feed += n0[i]
-    roots = several_roots_possible(code, T, w.a_ij, w.b_i, consts, patterns.gibbs_active[pat], n0,
+    roots = several_roots_possible(code, T, w.a_ij, w.b_i, system.model_constants, patterns.gibbs_active[pat], n0,
                                    patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], pat, w)
-    ambiguous = roots == SEVERAL_ROOTS
-    fixed_volume = opts.fixed_volume
-    recorded = False
-    total_iterations = 0
-    total_outer = 0
-    best = np.inf
-    method = opts.method
-    for phase in range(2):  # the requested method, then Gibbs minimisation when the extent method failed
-        if phase == 1:
-            failed = ints[STATUS] == STALLED or ints[STATUS] == SINGULAR  # not the caller's iteration limit
-            if not failed or method != METHOD_EXTENT or not system.complete:
-                break
-            method = METHOD_GIBBS
-        if method == METHOD_EXTENT:
-            active = patterns.extent_active[pat]
-            direction = patterns.extent_start[pat]
-        else:
-            active = patterns.gibbs_active[pat]
-            direction = patterns.gibbs_start[pat]
-        special = START_COLD
-        if phase == 0 and opts.guess:
-            special = START_GUESS
-        elif phase == 0 and warm and not ambiguous and code != MODEL_VIRIAL:
-            # (the truncated virial has regions with no physical state: a warm start from a neighbour can reach
-            # an answer that the state's own cold starts cannot, so it always starts cold, as when alone)
-            special = START_WARM
-        first_cold = 0 if special == START_COLD else 1
-        # every cold start where several stationary points may exist; elsewhere the next cold start only when
-        # the previous one failed (the first that converges answers)
-        n_starts = first_cold + len(COLD_FRACTIONS)
-        for k in range(n_starts):
-            started = False
-            if k < first_cold and special == START_GUESS:
-                if method == METHOD_EXTENT:
-                    for r in range(nr):
-                        w.extents[r] = guess[r]
-                    started = _start_from_extents(n0, nu, active, w.extents, w.n)
-                else:
-                    started = True
-                    for i in range(nc):
-                        w.n[i] = max(guess[i], 1e-14 * n_feed) if active[i] else 0.0
-            elif k < first_cold:  # warm start from the previous state of the chunk
-                same = True
-                prev_total = 0.0
-                for i in range(nc):
-                    prev_total += w.n0_prev[i]
-                    if w.n0_prev[i] != n0[i]:
-                        same = False
-                if same:
-                    started = True
-                    for i in range(nc):
-                        w.n[i] = w.n_prev[i]
-                    for r in range(nr):
-                        w.extents[r] = w.extents_prev[r]
-                    if method == METHOD_EXTENT and not fixed_volume:
-                        predict_start(patterns.extent_directions[pat], patterns.extent_basis[pat],
-                                      patterns.extent_rank[pat], active, g0, w.g0_prev,
-                                      math.log(PV) - LN_P_STANDARD - w.ln_p_prev[0], w.factor, w.scale, w.rhs,
-                                      w.step, w.n, w.extents)
-                elif method == METHOD_EXTENT:
-                    for r in range(nr):
-                        w.extents[r] = w.extents_prev[r] * n_feed / prev_total
-                    started = _start_from_extents(n0, nu, active, w.extents, w.n)
-                else:
-                    started = True
-                    for i in range(nc):
-                        v = w.n_prev[i] * n_feed / prev_total
-                        w.n[i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
-            if not started:
-                fraction = COLD_FRACTIONS[k - first_cold] if k >= first_cold else COLD_FRACTIONS[0]
-                _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, w.n, w.extents)
-            # ---- solve
-            reason = REASON_NONE
-            P = PV
-            if fixed_volume:
-                status, reason, iters, outer, n_t, z, root, P = _solve_at_volume(
-                    method, code, T, PV, n_feed * R * T / PV, n0, patterns.extent_directions[pat],
-                    patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
-                    patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts,
-                    opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, w)
-            else:
-                status, iters, outer, n_t, z, root = _solve_at_pressure(
-                    method, code, T, P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
-                    patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
-                    patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled, opts.tol,
-                    opts.tol_gibbs, opts.max_iterations, w)
-            total_iterations += iters
-            total_outer += outer
-            V = n_t * z * R * T / P
-            # the objective compared between starts: G/RT at fixed P, A/RT = G/RT - P V/(R T) at fixed V
-            G = 0.0
-            for i in range(nc):
-                if active[i]:
-                    G += w.n[i] * w.mu[i]
-            value = G - n_t * z if fixed_volume else G
-            if status == CONVERGED:
-                if not recorded or ints[STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
-                    _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                            system.nu_pinv, A, code, T, w.n, w.ln_phi, w.mu, w.extents, w.y, w.b_i)
-                    recorded = True
-                    best = value
-                if not ambiguous:
-                    break
-            elif not recorded or ints[STATUS] != CONVERGED:
-                _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu,
-                        system.nu_pinv, A, code, T, w.n, w.ln_phi, w.mu, w.extents, w.y, w.b_i)
-                recorded = True
-    ints[ITERATIONS] = total_iterations
-    ints[OUTER] = total_outer
+    return n_feed, roots
+
+
+@kernel
+def _finish_state(system, n0, roots, iterations, outer, fixed_volume, layout, w, row, ints):
+    """Complete a state's answer after its starts: iteration counts, the vapour-liquid screen (MAY_SPLIT), and
+    the checks of ``_check_answer``. When the answer converged, remember it for a warm start of the next state
+    (returns True)."""
+    nc = n0.shape[0]
+    ints[ITERATIONS] = iterations
+    ints[OUTER] = outer
     ints[MAY_SPLIT] = 0 if roots == ONE_ROOT else 1
-    _check_answer(row, ints, layout, code, n0, A, fixed_volume)
-    if ints[STATUS] != CONVERGED or ints[METHOD] != opts.method:
+    _check_answer(row, ints, layout, system.model_code, n0, system.elements, fixed_volume)
+    if ints[STATUS] != CONVERGED:
         return False
-    # remember the answer for a warm start of the next state
     for i in range(nc):
         w.n_prev[i] = row[layout.amounts + i]
         w.n0_prev[i] = n0[i]
-        w.g0_prev[i] = g0[i]
+        w.g0_prev[i] = w.g0[i]
     w.ln_p_prev[0] = math.log(row[layout.P]) - LN_P_STANDARD
-    for r in range(nr):
+    for r in range(w.extents.shape[0]):
         w.extents_prev[r] = row[layout.extents + r]
     return True
+
+
+@kernel
+def _mark_invalid(n0, PV, method, fixed_volume, layout, row, ints):
+    """The answer of a state that was not solved (invalid input): the feed as given, status INVALID_INPUT."""
+    nc = n0.shape[0]
+    row[:] = 0.0
+    total = 0.0
+    for i in range(nc):
+        row[layout.amounts + i] = n0[i] if n0[i] > 0.0 else 0.0
+        total += row[layout.amounts + i]
+    for i in range(nc):
+        if total > 0.0 and math.isfinite(total):
+            row[layout.y + i] = row[layout.amounts + i] / total
+    ok = math.isfinite(PV)
+    row[layout.P] = PV if (ok and not fixed_volume) else 0.0
+    row[layout.V] = PV if (ok and fixed_volume) else 0.0
+    ints[:] = 0
+    ints[STATUS] = INVALID_INPUT
+    ints[ROOT] = -1
+    ints[METHOD] = method
+
+
+class SolverPath(NamedTuple):
+    """What a compiled chunk solver is specialised for: its equilibrium method and whether the states are sealed
+    vessels. numba compiles a path's code the first time it is used (``_chunk_solver``), and only the solvers that
+    path runs: the first answer at fixed T and P compiles neither Gibbs minimisation nor the vessel search."""
+
+    method: int  # METHOD_EXTENT or METHOD_GIBBS
+    fixed_volume: bool
+
+
+def _chunk_solver(method: int, fixed_volume: bool):
+    """The chunk solver of one ``SolverPath`` (``method`` and ``fixed_volume`` are constants of the compiled code:
+    numba drops the branches of the other paths, so that a path compiles only the solvers it calls)."""
+
+    @kernel
+    def solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
+        """The states of one chunk (already gathered in solving order) one after the other with one set of work
+        buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous
+        converged one of the same pattern where that is safe (see the module docstring); the answers go to
+        ``rows`` (float, ``answer_layout``) and ``ints`` (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD,
+        LIQUID, MAY_SPLIT). ``ln_k_user`` and ``guesses`` (the caller's start, used when ``opts.guess``) have one
+        row per state or none. The chunk starts as if alone: no cubic root and no feed polytope carried over from
+        what the buffers held before. Runs without the GIL (``solve_many`` runs chunks on Python threads).
+
+        Each state is solved from one or more starts: where several stationary points may exist (``ambiguous``)
+        from every cold start, keeping the converged answer of lowest G/RT (A/RT in a sealed vessel); elsewhere
+        from the caller's guess or the previous state (warm), then the next cold start only when the previous
+        one failed (the first that converges answers)."""
+        nc = N0.shape[1]
+        nu = system.nu
+        nr = nu.shape[0]
+        code = system.model_code
+        consts = system.model_constants
+        w = work_views(work)  # the Work views of the chunk's buffers, built once and handed down by name
+        w.model_scratch[2, 0] = 0.0
+        w.vertex_info[1] = 0
+        layout = answer_layout(nc, nr, system.elements.shape[0])
+        empty = T[0:0]
+        last_T = -1.0
+        warm = False
+        last_pat = -1
+        for k in range(T.shape[0]):
+            row = rows[k]
+            n0 = N0[k]
+            if valid[k] == 0:
+                _mark_invalid(n0, PV[k], method, fixed_volume, layout, row, ints[k])
+                continue
+            pat = pats[k]
+            guess = guesses[k] if guesses.shape[0] > 0 else empty
+            n_feed, roots = _prepare_state(system, patterns, T[k], n0, pat,
+                                           ln_k_user[k] if ln_k_user.shape[0] > 0 else empty, opts, T[k] != last_T,
+                                           w)
+            ambiguous = roots == SEVERAL_ROOTS
+            if method == METHOD_EXTENT:
+                active = patterns.extent_active[pat]
+                direction = patterns.extent_start[pat]
+            else:
+                active = patterns.gibbs_active[pat]
+                direction = patterns.gibbs_start[pat]
+            special = START_COLD
+            if opts.guess:
+                special = START_GUESS
+            elif warm and pat == last_pat and opts.warm and not ambiguous and code != MODEL_VIRIAL:
+                # (the truncated virial has regions with no physical state: a warm start from a neighbour can reach
+                # an answer that the state's own cold starts cannot, so it always starts cold, as when alone)
+                special = START_WARM
+            first_cold = 0 if special == START_COLD else 1
+            recorded = False
+            best = np.inf
+            iterations = 0
+            outer_iterations = 0
+            for start in range(first_cold + len(COLD_FRACTIONS)):
+                started = False
+                if start < first_cold and special == START_GUESS:
+                    if method == METHOD_EXTENT:
+                        for r in range(nr):
+                            w.extents[r] = guess[r]
+                        started = _start_from_extents(n0, nu, active, w.extents, w.n)
+                    else:
+                        started = True
+                        for i in range(nc):
+                            w.n[i] = max(guess[i], 1e-14 * n_feed) if active[i] else 0.0
+                elif start < first_cold:  # warm start from the previous state of the chunk
+                    same = True
+                    prev_total = 0.0
+                    for i in range(nc):
+                        prev_total += w.n0_prev[i]
+                        if w.n0_prev[i] != n0[i]:
+                            same = False
+                    if same:
+                        started = True
+                        for i in range(nc):
+                            w.n[i] = w.n_prev[i]
+                        for r in range(nr):
+                            w.extents[r] = w.extents_prev[r]
+                        if method == METHOD_EXTENT and not fixed_volume:
+                            predict_start(patterns.extent_directions[pat], patterns.extent_basis[pat],
+                                          patterns.extent_rank[pat], active, w.g0, w.g0_prev,
+                                          math.log(PV[k]) - LN_P_STANDARD - w.ln_p_prev[0], w.factor, w.scale,
+                                          w.rhs, w.step, w.n, w.extents)
+                    elif method == METHOD_EXTENT:
+                        for r in range(nr):
+                            w.extents[r] = w.extents_prev[r] * n_feed / prev_total
+                        started = _start_from_extents(n0, nu, active, w.extents, w.n)
+                    else:
+                        started = True
+                        for i in range(nc):
+                            v = w.n_prev[i] * n_feed / prev_total
+                            w.n[i] = max(v, 1e-14 * n_feed) if active[i] else 0.0
+                if not started:
+                    fraction = COLD_FRACTIONS[start - first_cold] if start >= first_cold else COLD_FRACTIONS[0]
+                    _cold_start(n0, active, direction, patterns.extent_start_extents[pat], nr, fraction, w.n,
+                                w.extents)
+                # ---- solve
+                reason = REASON_NONE
+                P = PV[k]
+                if fixed_volume:
+                    status, reason, iters, outer, n_t, z, root, P = _solve_at_volume(
+                        method, code, T[k], PV[k], n_feed * R * T[k] / PV[k], n0, patterns.extent_directions[pat],
+                        patterns.extent_basis[pat], patterns.extent_rank[pat], patterns.gibbs_rows[pat],
+                        patterns.gibbs_rank[pat], patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active,
+                        consts, opts.coupled, opts.tol, opts.tol_gibbs, opts.tol_volume, opts.max_iterations, w)
+                else:
+                    status, iters, outer, n_t, z, root = _solve_at_pressure(
+                        method, code, T[k], P, n0, patterns.extent_directions[pat], patterns.extent_basis[pat],
+                        patterns.extent_rank[pat], patterns.gibbs_rows[pat], patterns.gibbs_rank[pat],
+                        patterns.gibbs_null[pat], patterns.gibbs_null_rank[pat], active, consts, opts.coupled,
+                        opts.tol, opts.tol_gibbs, opts.max_iterations, w)
+                iterations += iters
+                outer_iterations += outer
+                V = n_t * z * R * T[k] / P
+                # the objective compared between starts: G/RT at fixed P, A/RT = G/RT - P V/(R T) at fixed V
+                G = 0.0
+                for i in range(nc):
+                    if active[i]:
+                        G += w.n[i] * w.mu[i]
+                value = G - n_t * z if fixed_volume else G
+                if status == CONVERGED:
+                    if not recorded or ints[k, STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
+                        _record(row, ints[k], layout, status, reason, root, method, P, V, z, G, n0, active, w.ln_k,
+                                nu, system.nu_pinv, system.elements, code, T[k], w.n, w.ln_phi, w.mu, w.extents,
+                                w.y, w.b_i)
+                        recorded = True
+                        best = value
+                    if not ambiguous:
+                        break
+                elif not recorded or ints[k, STATUS] != CONVERGED:
+                    _record(row, ints[k], layout, status, reason, root, method, P, V, z, G, n0, active, w.ln_k, nu,
+                            system.nu_pinv, system.elements, code, T[k], w.n, w.ln_phi, w.mu, w.extents, w.y,
+                            w.b_i)
+                    recorded = True
+            warm = _finish_state(system, n0, roots, iterations, outer_iterations, fixed_volume, layout, w, row,
+                                 ints[k])
+            last_T = T[k]
+            last_pat = pat
+
+    return solve_chunk
+
+
+# Every path's chunk solver, and its call site for the scalar path: the argument types follow from the system's
+# arrays and the pattern snapshot (everything else is the caller's own buffers and an Options), so the compiled
+# version is looked up once per (system, snapshot) instead of being chosen by typing every argument on every call
+# (hipeq._jit.DirectCall). Building them compiles nothing: numba compiles a path on its first call.
+_PATHS = {path: DirectCall(_chunk_solver(*path))
+          for path in (SolverPath(method, fixed_volume) for method in (METHOD_EXTENT, METHOD_GIBBS)
+                       for fixed_volume in (False, True))}
+
+
+def _fallback_wanted(system: SystemArrays, opts: Options, statuses: np.ndarray) -> np.ndarray:
+    """Where the extent method's answer calls for Gibbs minimisation instead: it STALLED or was SINGULAR (not the
+    caller's iteration limit) and the reactions span every composition change the elements allow."""
+    if opts.method != METHOD_EXTENT or not system.complete:
+        return np.zeros(statuses.shape, dtype=bool)
+    return (statuses == STALLED) | (statuses == SINGULAR)
 
 
 def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float, n0: np.ndarray, pat: int,
               ln_k_user: np.ndarray, guess: np.ndarray, opts: Options, row: np.ndarray, ints: np.ndarray) -> None:
     """One state (the scalar path): answers in ``row`` (float, ``answer_layout``) and ``ints`` (INT_COLUMNS).
 
-    Solved as a chunk of one state by the compiled ``_solve_chunk``, called from here (Python, through
-    ``_solve_chunk_direct``: its machine code once the argument types are known) with arrays of the types
-    ``solve_many`` hands it: the scalar and the batch path then share one compiled solver. (``solve_state``
-    is compiled into its caller, and compiling it was most of a first call's time; a compiled wrapper around
-    the chunk would compile the whole solver a second time, as numba optimises each function together with
-    everything it calls.) The first state of a chunk is solved exactly as a lone state: new temperature, no
-    warm start."""
+    Solved as a chunk of one state by the compiled chunk solver of its path (``SolverPath``), called from here
+    with arrays of the types ``solve_many`` hands it: the scalar and the batch path then share one compiled
+    solver. The first state of a chunk is solved exactly as a lone state: new temperature, no warm start.
+
+    When the extent method fails (``_fallback_wanted``), the state is solved again by Gibbs minimisation from its
+    cold starts (the Gibbs path, compiled on first need); that answer is reported, with the iterations of both."""
     nc = n0.shape[0]
     nr = system.nu.shape[0]
     k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
@@ -635,8 +747,17 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else no_guess
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
-    _solve_chunk_direct((system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses,
-                        one_valid, opts, rows, ints_one, work)
+    _PATHS[SolverPath(opts.method, opts.fixed_volume)](
+        (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts,
+        rows, ints_one, work)
+    if _fallback_wanted(system, opts, ints_one[:, STATUS])[0]:
+        iterations, outer = int(ints[ITERATIONS]), int(ints[OUTER])
+        gibbs = opts._replace(method=METHOD_GIBBS, guess=False)  # from the cold starts, as after any failure
+        _PATHS[SolverPath(METHOD_GIBBS, opts.fixed_volume)](
+            (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, no_guess, one_valid,
+            gibbs, rows, ints_one, work)
+        ints[ITERATIONS] += iterations
+        ints[OUTER] += outer
 
 
 _scalar = threading.local()
@@ -645,7 +766,7 @@ _scalar = threading.local()
 def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
     """Work buffers and one-state input arrays of this thread for systems of this size, kept between scalar calls
     (allocating them cost a few microseconds of a ~20 us call). Only the inputs, the cubic root's start and the
-    kept polytope vertices are read before being written, and ``solve_one`` resets them."""
+    kept polytope vertices are read before being written, and the chunk solver resets them."""
     cache = getattr(_scalar, "buffers", None)
     if cache is None:
         cache = _scalar.buffers = {}
@@ -657,83 +778,64 @@ def _scalar_buffers(nc: int, nr: int, k: int) -> tuple:
     return found
 
 
-@kernel
-def _solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
-    """The states of one chunk (already gathered in solving order) one after the other with one set of work
-    buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous
-    converged one of the same pattern where that is safe (see the
-    module docstring); the answers go to ``rows`` and ``ints``. ``ln_k_user`` and ``guesses`` (the caller's
-    start, used when ``opts.guess``) have one row per state or none. The chunk starts as if alone: no cubic root
-    and no feed polytope carried over from what the buffers held before."""
-    nc = N0.shape[1]
-    w = work_views(work)  # the Work views of the chunk's buffers, built once and handed down by name
-    w.model_scratch[2, 0] = 0.0
-    w.vertex_info[1] = 0
-    layout = answer_layout(nc, system.nu.shape[0], system.elements.shape[0])
-    empty = T[0:0]
-    last_T = -1.0
-    warm = False
-    last_pat = -1
-    for k in range(T.shape[0]):
-        row = rows[k]
-        if valid[k] == 0:
-            row[:] = 0.0
-            total = 0.0
-            for i in range(nc):
-                row[layout.amounts + i] = N0[k, i] if N0[k, i] > 0.0 else 0.0
-                total += row[layout.amounts + i]
-            for i in range(nc):
-                if total > 0.0 and math.isfinite(total):
-                    row[layout.y + i] = row[layout.amounts + i] / total
-            ok = math.isfinite(PV[k])
-            row[layout.P] = PV[k] if (ok and not opts.fixed_volume) else 0.0
-            row[layout.V] = PV[k] if (ok and opts.fixed_volume) else 0.0
-            ints[k, :] = 0
-            ints[k, STATUS] = INVALID_INPUT
-            ints[k, ROOT] = -1
-            ints[k, METHOD] = opts.method
-            continue
-        pat = pats[k]
-        user = ln_k_user[k] if ln_k_user.shape[0] > 0 else empty
-        guess = guesses[k] if guesses.shape[0] > 0 else empty
-        use_warm = warm and pat == last_pat and opts.warm
-        warm = solve_state(system, patterns, T[k], PV[k], N0[k], pat, user, guess, opts, T[k] != last_T, use_warm,
-                           w, row, ints[k])
-        last_T = T[k]
-        last_pat = pat
-
-
-# the scalar path's call of _solve_chunk: the argument types follow from the system's arrays and the pattern
-# snapshot (everything else is solve_one's own buffers and an Options), so the compiled version is looked up once
-# per (system, snapshot) instead of being chosen by typing every argument on every call (hipeq._jit.DirectCall)
-_solve_chunk_direct = DirectCall(_solve_chunk)
-
-
 def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV: np.ndarray, N0: np.ndarray,
                pats: np.ndarray, ln_k_user: np.ndarray, valid: np.ndarray, opts: Options, chunk: int,
                order: np.ndarray, out: np.ndarray, out_ints: np.ndarray) -> None:
-    """Many states (T[k], PV[k], N0[k]) in parallel chunks of ``chunk`` consecutive entries of ``order`` (a
-    permutation that puts similar states next to each other), warm-started along a chunk where that is safe.
-    States with valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per state or a
-    single one for all; ``ln_k_user`` has shape (n, nr) or (0, nr). ``out`` (n, width) receives one packed float
-    row per state (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row.
+    """Many states (T[k], PV[k], N0[k]) in chunks of ``chunk`` consecutive entries of ``order`` (a permutation
+    that puts similar states next to each other), warm-started along a chunk where that is safe. States with
+    valid[k] == 0 are skipped and marked INVALID_INPUT; ``pats`` holds one pattern per state or a single one for
+    all; ``ln_k_user`` has shape (n, nr) or (0, nr). ``out`` (n, width) receives one packed float row per state
+    (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row.
 
-    The chunks are split into ``numba.get_num_threads()`` contiguous ranges (as a ``prange`` loop schedules
-    them), each solved by ``_solve_chunks`` on a thread of its own (compiled without the GIL). Not a ``prange``
-    loop: numba's parallel lowering optimised and compiled the whole solver three more times, 30 s of the first
-    batch call."""
-    n_chunks = -(-T.shape[0] // chunk)
+    The inputs are gathered into solving order once; the chunks are split into ``numba.get_num_threads()``
+    contiguous ranges, each solved on a Python thread of its own by the path's compiled chunk solver (the one the
+    scalar path calls; it runs without the GIL), with one set of work buffers per range (the chunk solver resets
+    what a chunk would otherwise carry over, so the answers do not depend on the thread count). States the path
+    without the Gibbs fallback left STALLED or SINGULAR are then solved alone by ``solve_one``: their answers are
+    those of the scalar path."""
+    n = T.shape[0]
+    nc = N0.shape[1]
+    nr = system.nu.shape[0]
+    ne = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
+    Tl = np.ascontiguousarray(T[order], dtype=np.float64)
+    PVl = np.ascontiguousarray(PV[order], dtype=np.float64)
+    N0l = np.ascontiguousarray(N0[order], dtype=np.float64)
+    patl = np.ascontiguousarray(pats[order] if pats.shape[0] > 1 else np.full(n, pats[0]), dtype=np.int64)
+    validl = np.ascontiguousarray(valid[order], dtype=np.uint8)
+    userl = np.ascontiguousarray(ln_k_user[order] if ln_k_user.shape[0] > 0 else ln_k_user, dtype=np.float64)
+    rows = np.empty((n, out.shape[1]))
+    ints = np.empty((n, INT_COLUMNS), dtype=np.int64)
+    no_guesses = np.empty((0, 0))  # a batch starts from its own answers, never from a caller's guess
+    solve = _PATHS[SolverPath(opts.method, opts.fixed_volume)]
+    keys = (system, patterns)
+
+    def solve_range(first_chunk: int, last_chunk: int) -> None:
+        work = make_work(nc, nr, ne)
+        for c in range(first_chunk, last_chunk):
+            a = c * chunk
+            b = min(n, a + chunk)
+            user = userl[a:b] if userl.shape[0] > 0 else userl
+            solve(keys, system, patterns, Tl[a:b], PVl[a:b], N0l[a:b], patl[a:b], user, no_guesses, validl[a:b],
+                  opts, rows[a:b], ints[a:b], work)
+
+    n_chunks = -(-n // chunk)
     threads = max(1, min(numba.get_num_threads(), n_chunks))
-    args = (system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints)
-    if threads == 1:
-        _solve_chunks(*args, 0, n_chunks)
-        return
     bounds = [n_chunks * t // threads for t in range(threads + 1)]
-    pool = _thread_pool(threads)
-    done = [pool.submit(_solve_chunks, *args, bounds[t], bounds[t + 1]) for t in range(1, threads)]
-    _solve_chunks(*args, bounds[0], bounds[1])  # the calling thread takes the first range
-    for job in done:
-        job.result()
+    if threads == 1:
+        solve_range(0, n_chunks)
+    else:
+        pool = _thread_pool(threads)
+        done = [pool.submit(solve_range, bounds[t], bounds[t + 1]) for t in range(1, threads)]
+        solve_range(bounds[0], bounds[1])  # the calling thread takes the first range
+        for job in done:
+            job.result()
+    out[order] = rows
+    out_ints[order] = ints
+    for k in np.flatnonzero(_fallback_wanted(system, opts, out_ints[:, STATUS])):
+        solve_one(system, patterns, float(T[k]), float(PV[k]), np.ascontiguousarray(N0[k], dtype=np.float64),
+                  int(pats[k] if pats.shape[0] > 1 else pats[0]),
+                  ln_k_user[k] if ln_k_user.shape[0] > 0 else np.empty(0), np.empty(0), opts, out[k],
+                  out_ints[k])
 
 
 _pool: ThreadPoolExecutor | None = None
@@ -751,62 +853,6 @@ def _thread_pool(threads: int) -> ThreadPoolExecutor:
             _pool_workers = threads - 1
             _pool = ThreadPoolExecutor(max_workers=_pool_workers, thread_name_prefix="hipeq")
         return _pool
-
-
-@threaded_entry
-def _solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, valid, opts, chunk, order, out, out_ints, first_chunk,
-                  last_chunk):
-    """Chunks ``first_chunk`` to ``last_chunk - 1`` of ``solve_many``, one after the other, each with work buffers
-    of its own (so that its answers do not depend on which thread solved which chunk)."""
-    n = T.shape[0]
-    nc = N0.shape[1]
-    nr = system.nu.shape[0]
-    width = out.shape[1]
-    no_guesses = np.empty((0, 0))  # a batch starts from its own answers, never from a caller's guess
-    for c in range(first_chunk, last_chunk):
-        first = c * chunk
-        m = min(n, first + chunk) - first
-        ne = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
-        work = make_work(nc, nr, ne)
-        # the chunk's states gathered into solving order, and its answers scattered back at the end: the
-        # solve itself then reads and writes memory in sequence
-        Tl = np.empty(m)
-        PVl = np.empty(m)
-        N0l = np.empty((m, nc))
-        patl = np.empty(m, dtype=np.int64)
-        validl = np.empty(m, dtype=np.uint8)
-        userl = np.empty((m if ln_k_user.shape[0] > 0 else 0, nr))
-        rows = np.empty((m, width))
-        ints = np.empty((m, INT_COLUMNS), dtype=np.int64)
-        _gather(order[first:first + m], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
-        _solve_chunk(system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, rows, ints, work)
-        _scatter(order[first:first + m], rows, ints, out, out_ints)
-
-
-@kernel
-def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl):
-    """Row order[l] of the inputs into row l of the chunk's own arrays."""
-    for l in range(order.shape[0]):
-        k = order[l]
-        Tl[l] = T[k]
-        PVl[l] = PV[k]
-        patl[l] = pats[k] if pats.shape[0] > 1 else pats[0]
-        validl[l] = valid[k]
-        for i in range(N0.shape[1]):
-            N0l[l, i] = N0[k, i]
-        for r in range(userl.shape[1] if userl.shape[0] > 0 else 0):
-            userl[l, r] = ln_k_user[k, r]
-
-
-@kernel
-def _scatter(order, rows, ints, out, out_ints):
-    """Row l of the chunk's answers into row order[l] of the outputs."""
-    for l in range(order.shape[0]):
-        k = order[l]
-        for a in range(rows.shape[1]):
-            out[k, a] = rows[l, a]
-        for a in range(ints.shape[1]):
-            out_ints[k, a] = ints[l, a]
 
 # ---------------------------------------------------------------------------------------------------------
 # batch preparation (one pass over the states each, no temporaries)
