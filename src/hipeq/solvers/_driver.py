@@ -388,7 +388,7 @@ def _solve_at_volume(method, code, T, V, P_guess, n0, W, Zb, neff, Q, neq, Nb, n
                                   tol, tol_g, tol_v, max_iter, w)
 
 
-@kernel
+@inline_kernel
 def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, active, ln_k, nu, nu_pinv, A, code,
             T, n, ln_phi, mu, extents, y, b_i):
     """Write the current iterate (amounts, ln phi, potentials, extents of the work buffers) as a state's answer."""
@@ -469,7 +469,7 @@ def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
         ints[REASON] = REASON_ABOVE_CEILING if row[layout.P] > P_CEILING else REASON_BELOW_FLOOR
 
 
-@kernel
+@inline_kernel
 def _prepare_state(system, patterns, T, n0, pat, ln_k_user, opts, new_T, w):
     """What a state's solve needs before its first start: the temperature-dependent model parameters and g0_i(T)
     (only when ``new_T``: T differs from the previous state of the chunk), ln K (the caller's, if given: g0 is
@@ -505,7 +505,7 @@ def _prepare_state(system, patterns, T, n0, pat, ln_k_user, opts, new_T, w):
     return n_feed, roots
 
 
-@kernel
+@inline_kernel
 def _finish_state(system, n0, roots, iterations, outer, fixed_volume, layout, w, row, ints):
     """Complete a state's answer after its starts: iteration counts, the vapour-liquid screen (MAY_SPLIT), and
     the checks of ``_check_answer``. When the answer converged, remember it for a warm start of the next state
@@ -684,20 +684,19 @@ def _chunk_solver(method: int, fixed_volume: bool):
                     if active[i]:
                         G += w.n[i] * w.mu[i]
                 value = G - n_t * z if fixed_volume else G
-                if status == CONVERGED:
-                    if not recorded or ints[k, STATUS] != CONVERGED or value < best - 1e-12 * abs(best):
-                        _record(row, ints[k], layout, status, reason, root, method, P, V, z, G, n0, active, w.ln_k,
-                                nu, system.nu_pinv, system.elements, code, T[k], w.n, w.ln_phi, w.mu, w.extents,
-                                w.y, w.b_i)
-                        recorded = True
-                        best = value
-                    if not ambiguous:
-                        break
-                elif not recorded or ints[k, STATUS] != CONVERGED:
+                # kept: the first answer, any converged one over a failure, a lower converged one
+                keep = not recorded or ints[k, STATUS] != CONVERGED
+                if status == CONVERGED and not keep:
+                    keep = value < best - 1e-12 * abs(best)
+                if keep:
                     _record(row, ints[k], layout, status, reason, root, method, P, V, z, G, n0, active, w.ln_k, nu,
                             system.nu_pinv, system.elements, code, T[k], w.n, w.ln_phi, w.mu, w.extents, w.y,
                             w.b_i)
                     recorded = True
+                    if status == CONVERGED:
+                        best = value
+                if status == CONVERGED and not ambiguous:
+                    break
             warm = _finish_state(system, n0, roots, iterations, outer_iterations, fixed_volume, layout, w, row,
                                  ints[k])
             last_T = T[k]
@@ -715,12 +714,14 @@ _PATHS = {path: DirectCall(_chunk_solver(*path))
                        for fixed_volume in (False, True))}
 
 
-def _fallback_wanted(system: SystemArrays, opts: Options, statuses: np.ndarray) -> np.ndarray:
-    """Where the extent method's answer calls for Gibbs minimisation instead: it STALLED or was SINGULAR (not the
-    caller's iteration limit) and the reactions span every composition change the elements allow."""
-    if opts.method != METHOD_EXTENT or not system.complete:
-        return np.zeros(statuses.shape, dtype=bool)
-    return (statuses == STALLED) | (statuses == SINGULAR)
+FALLBACK_STATUSES = (STALLED, SINGULAR)  # the extent method's failures that Gibbs minimisation answers instead
+
+
+def _fallback_possible(system: SystemArrays, opts: Options) -> bool:
+    """Whether a state whose extent solve ended in FALLBACK_STATUSES (not the caller's iteration limit) is solved
+    again by Gibbs minimisation: the extent method was asked for and the reactions span every composition change
+    the elements allow."""
+    return opts.method == METHOD_EXTENT and system.complete
 
 
 def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float, n0: np.ndarray, pat: int,
@@ -731,8 +732,9 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     with arrays of the types ``solve_many`` hands it: the scalar and the batch path then share one compiled
     solver. The first state of a chunk is solved exactly as a lone state: new temperature, no warm start.
 
-    When the extent method fails (``_fallback_wanted``), the state is solved again by Gibbs minimisation from its
-    cold starts (the Gibbs path, compiled on first need); that answer is reported, with the iterations of both."""
+    When the extent method fails (``FALLBACK_STATUSES``, ``_fallback_possible``), the state is solved again by
+    Gibbs minimisation from its cold starts (the Gibbs path, compiled on first need); that answer is reported,
+    with the iterations of both."""
     nc = n0.shape[0]
     nr = system.nu.shape[0]
     k = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
@@ -747,10 +749,11 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     guesses = np.array(guess, dtype=np.float64, ndmin=2) if opts.guess else no_guess
     rows = row.reshape(1, row.shape[0])  # views: the answers land in the caller's arrays
     ints_one = ints.reshape(1, ints.shape[0])
-    _PATHS[SolverPath(opts.method, opts.fixed_volume)](
+    # (a plain tuple finds the SolverPath key: a named tuple hashes and compares as its fields)
+    _PATHS[opts.method, opts.fixed_volume](
         (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts,
         rows, ints_one, work)
-    if _fallback_wanted(system, opts, ints_one[:, STATUS])[0]:
+    if ints[STATUS] in FALLBACK_STATUSES and _fallback_possible(system, opts):
         iterations, outer = int(ints[ITERATIONS]), int(ints[OUTER])
         gibbs = opts._replace(method=METHOD_GIBBS, guess=False)  # from the cold starts, as after any failure
         _PATHS[SolverPath(METHOD_GIBBS, opts.fixed_volume)](
@@ -807,7 +810,7 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
     ints = np.empty((n, INT_COLUMNS), dtype=np.int64)
     no_guesses = np.empty((0, 0))  # a batch starts from its own answers, never from a caller's guess
     solve = _PATHS[SolverPath(opts.method, opts.fixed_volume)]
-    keys = (system, patterns)
+    keys = (system, patterns, _BATCH)  # the batch's own compiled-version entry, whatever the scalar path took
 
     def solve_range(first_chunk: int, last_chunk: int) -> None:
         work = make_work(nc, nr, ne)
@@ -831,13 +834,15 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
             job.result()
     out[order] = rows
     out_ints[order] = ints
-    for k in np.flatnonzero(_fallback_wanted(system, opts, out_ints[:, STATUS])):
+    again = np.isin(out_ints[:, STATUS], FALLBACK_STATUSES) if _fallback_possible(system, opts) else []
+    for k in np.flatnonzero(again):
         solve_one(system, patterns, float(T[k]), float(PV[k]), np.ascontiguousarray(N0[k], dtype=np.float64),
                   int(pats[k] if pats.shape[0] > 1 else pats[0]),
                   ln_k_user[k] if ln_k_user.shape[0] > 0 else np.empty(0), np.empty(0), opts, out[k],
                   out_ints[k])
 
 
+_BATCH = object()  # a key of solve_many's direct calls (hipeq._jit.DirectCall)
 _pool: ThreadPoolExecutor | None = None
 _pool_workers = 0
 _pool_lock = threading.Lock()
