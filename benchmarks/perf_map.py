@@ -26,7 +26,7 @@ import time
 _NAME = re.compile(r"hipeq\w*?\d+(\w+?)\d*B\d+")
 
 
-def write_map(entry_points: tuple[str, ...] = ("solve_chunk",)) -> int:
+def write_map(entry_points: tuple[str, ...] = ("solve_chunks",)) -> int:
     """Write /tmp/perf-<pid>.map for every function linked into hipeq's compiled entry points; returns the
     number of functions named."""
     from numba.core.registry import CPUDispatcher

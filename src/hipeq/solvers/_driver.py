@@ -562,14 +562,16 @@ def _chunk_solver(method: int, fixed_volume: bool):
     numba drops the branches of the other paths, so that a path compiles only the solvers it calls)."""
 
     @kernel
-    def solve_chunk(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, rows, ints, work):
-        """The states of one chunk (already gathered in solving order) one after the other with one set of work
-        buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`), each warm-started from the previous
-        converged one of the same pattern where that is safe (see the module docstring); the answers go to
-        ``rows`` (float, ``answer_layout``) and ``ints`` (STATUS, ITERATIONS, OUTER, ROOT, REASON, METHOD,
-        LIQUID, MAY_SPLIT). ``ln_k_user`` and ``guesses`` (the caller's start, used when ``opts.guess``) have one
-        row per state or none. The chunk starts as if alone: no cubic root and no feed polytope carried over from
-        what the buffers held before. Runs without the GIL (``solve_many`` runs chunks on Python threads).
+    def solve_chunks(system, patterns, T, PV, N0, pats, ln_k_user, guesses, valid, opts, chunk, rows, ints, work):
+        """The states given (already gathered in solving order), in chunks of ``chunk`` consecutive states, one
+        state after the other with one set of work buffers (``work``, :class:`~hipeq.solvers._common.WorkBuffers`):
+        along a chunk each state is warm-started from the previous converged one of the same pattern where that
+        is safe (see the module docstring); each chunk starts as if alone (no previous state, no cubic root and
+        no feed polytope carried over), so that its answers do not depend on the other chunks, or on what the
+        buffers held before. The answers go to ``rows`` (float, ``answer_layout``) and ``ints`` (STATUS,
+        ITERATIONS, OUTER, ROOT, REASON, METHOD, LIQUID, MAY_SPLIT). ``ln_k_user`` and ``guesses`` (the caller's
+        start, used when ``opts.guess``) have one row per state or none. Runs without the GIL (``solve_many``
+        runs ranges of chunks on Python threads).
 
         Each state is solved from one or more starts: where several stationary points may exist (``ambiguous``)
         from every cold start, keeping the converged answer of lowest G/RT (A/RT in a sealed vessel); elsewhere
@@ -580,15 +582,19 @@ def _chunk_solver(method: int, fixed_volume: bool):
         nr = nu.shape[0]
         code = system.model_code
         consts = system.model_constants
-        w = work_views(work)  # the Work views of the chunk's buffers, built once and handed down by name
-        w.model_scratch[2, 0] = 0.0
-        w.vertex_info[1] = 0
+        w = work_views(work)  # the Work views of the buffers, built once and handed down by name
         layout = answer_layout(nc, nr, system.elements.shape[0])
         empty = T[0:0]
         last_T = -1.0
         warm = False
         last_pat = -1
         for k in range(T.shape[0]):
+            if k % chunk == 0:  # a new chunk: as if alone
+                w.model_scratch[2, 0] = 0.0
+                w.vertex_info[1] = 0
+                last_T = -1.0
+                warm = False
+                last_pat = -1
             row = rows[k]
             n0 = N0[k]
             if valid[k] == 0:
@@ -702,7 +708,7 @@ def _chunk_solver(method: int, fixed_volume: bool):
             last_T = T[k]
             last_pat = pat
 
-    return solve_chunk
+    return solve_chunks
 
 
 # Every path's chunk solver, and its call site for the scalar path: the argument types follow from the system's
@@ -751,14 +757,14 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     ints_one = ints.reshape(1, ints.shape[0])
     # (a plain tuple finds the SolverPath key: a named tuple hashes and compares as its fields)
     _PATHS[opts.method, opts.fixed_volume](
-        (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts,
+        (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, 1,
         rows, ints_one, work)
     if ints[STATUS] in FALLBACK_STATUSES and _fallback_possible(system, opts):
         iterations, outer = int(ints[ITERATIONS]), int(ints[OUTER])
         gibbs = opts._replace(method=METHOD_GIBBS, guess=False)  # from the cold starts, as after any failure
         _PATHS[SolverPath(METHOD_GIBBS, opts.fixed_volume)](
             (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, no_guess, one_valid,
-            gibbs, rows, ints_one, work)
+            gibbs, 1, rows, ints_one, work)
         ints[ITERATIONS] += iterations
         ints[OUTER] += outer
 
@@ -790,50 +796,43 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
     all; ``ln_k_user`` has shape (n, nr) or (0, nr). ``out`` (n, width) receives one packed float row per state
     (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row.
 
-    The inputs are gathered into solving order once; the chunks are split into ``numba.get_num_threads()``
-    contiguous ranges, each solved on a Python thread of its own by the path's compiled chunk solver (the one the
-    scalar path calls; it runs without the GIL), with one set of work buffers per range (the chunk solver resets
-    what a chunk would otherwise carry over, so the answers do not depend on the thread count). States the path
-    without the Gibbs fallback left STALLED or SINGULAR are then solved alone by ``solve_one``: their answers are
-    those of the scalar path."""
+    The chunks are split into ``numba.get_num_threads()`` contiguous ranges, each solved on a Python thread of
+    its own: its states gathered into solving order (``_gather``), solved by one call of the path's compiled
+    chunk solver (the one the scalar path calls; it runs without the GIL and starts each chunk as if alone, so
+    the answers do not depend on the thread count), and scattered back (``_scatter``). States the extent method
+    left STALLED or SINGULAR are then solved alone by ``solve_one``, which falls back to Gibbs minimisation:
+    their answers are those of the scalar path."""
     n = T.shape[0]
     nc = N0.shape[1]
     nr = system.nu.shape[0]
     ne = max(system.elements.shape[0], patterns.gibbs_rows.shape[1])
-    Tl = np.ascontiguousarray(T[order], dtype=np.float64)
-    PVl = np.ascontiguousarray(PV[order], dtype=np.float64)
-    N0l = np.ascontiguousarray(N0[order], dtype=np.float64)
-    patl = np.ascontiguousarray(pats[order] if pats.shape[0] > 1 else np.full(n, pats[0]), dtype=np.int64)
-    validl = np.ascontiguousarray(valid[order], dtype=np.uint8)
-    userl = np.ascontiguousarray(ln_k_user[order] if ln_k_user.shape[0] > 0 else ln_k_user, dtype=np.float64)
-    rows = np.empty((n, out.shape[1]))
-    ints = np.empty((n, INT_COLUMNS), dtype=np.int64)
     no_guesses = np.empty((0, 0))  # a batch starts from its own answers, never from a caller's guess
     solve = _PATHS[SolverPath(opts.method, opts.fixed_volume)]
     keys = (system, patterns, _BATCH)  # the batch's own compiled-version entry, whatever the scalar path took
 
-    def solve_range(first_chunk: int, last_chunk: int) -> None:
-        work = make_work(nc, nr, ne)
-        for c in range(first_chunk, last_chunk):
-            a = c * chunk
-            b = min(n, a + chunk)
-            user = userl[a:b] if userl.shape[0] > 0 else userl
-            solve(keys, system, patterns, Tl[a:b], PVl[a:b], N0l[a:b], patl[a:b], user, no_guesses, validl[a:b],
-                  opts, rows[a:b], ints[a:b], work)
+    def solve_range(first: int, last: int) -> None:
+        """States order[first:last] (whole chunks), gathered into solving order, solved, scattered back."""
+        m = last - first
+        Tl, PVl, N0l = np.empty(m), np.empty(m), np.empty((m, nc))
+        patl, validl = np.empty(m, dtype=np.int64), np.empty(m, dtype=np.uint8)
+        userl = np.empty((m if ln_k_user.shape[0] > 0 else 0, nr))
+        rows, ints = np.empty((m, out.shape[1])), np.empty((m, INT_COLUMNS), dtype=np.int64)
+        _gather(order[first:last], T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl)
+        solve(keys, system, patterns, Tl, PVl, N0l, patl, userl, no_guesses, validl, opts, chunk, rows, ints,
+              make_work(nc, nr, ne))
+        _scatter(order[first:last], rows, ints, out, out_ints)
 
     n_chunks = -(-n // chunk)
     threads = max(1, min(numba.get_num_threads(), n_chunks))
-    bounds = [n_chunks * t // threads for t in range(threads + 1)]
+    bounds = [min(n, chunk * (n_chunks * t // threads)) for t in range(threads + 1)]
     if threads == 1:
-        solve_range(0, n_chunks)
+        solve_range(0, n)
     else:
         pool = _thread_pool(threads)
         done = [pool.submit(solve_range, bounds[t], bounds[t + 1]) for t in range(1, threads)]
         solve_range(bounds[0], bounds[1])  # the calling thread takes the first range
         for job in done:
             job.result()
-    out[order] = rows
-    out_ints[order] = ints
     again = np.isin(out_ints[:, STATUS], FALLBACK_STATUSES) if _fallback_possible(system, opts) else []
     for k in np.flatnonzero(again):
         solve_one(system, patterns, float(T[k]), float(PV[k]), np.ascontiguousarray(N0[k], dtype=np.float64),
@@ -858,6 +857,33 @@ def _thread_pool(threads: int) -> ThreadPoolExecutor:
             _pool_workers = threads - 1
             _pool = ThreadPoolExecutor(max_workers=_pool_workers, thread_name_prefix="hipeq")
         return _pool
+
+@kernel
+def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl):
+    """Row order[l] of the inputs into row l of a range's own arrays (its states in solving order: the solve then
+    reads memory in sequence)."""
+    for l in range(order.shape[0]):
+        k = order[l]
+        Tl[l] = T[k]
+        PVl[l] = PV[k]
+        patl[l] = pats[k] if pats.shape[0] > 1 else pats[0]
+        validl[l] = valid[k]
+        for i in range(N0.shape[1]):
+            N0l[l, i] = N0[k, i]
+        for r in range(userl.shape[1] if userl.shape[0] > 0 else 0):
+            userl[l, r] = ln_k_user[k, r]
+
+
+@kernel
+def _scatter(order, rows, ints, out, out_ints):
+    """Row l of a range's answers into row order[l] of the outputs."""
+    for l in range(order.shape[0]):
+        k = order[l]
+        for a in range(rows.shape[1]):
+            out[k, a] = rows[l, a]
+        for a in range(ints.shape[1]):
+            out_ints[k, a] = ints[l, a]
+
 
 # ---------------------------------------------------------------------------------------------------------
 # batch preparation (one pass over the states each, no temporaries)
