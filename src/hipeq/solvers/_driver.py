@@ -1,5 +1,9 @@
 """Compiled drivers: one state, or many states in parallel chunks with warm starts.
 
+One compiled chunk solver per ``SolverPath`` (equilibrium method, fixed pressure or sealed vessel), compiled the
+first time the path is used and only with the solvers it runs; the scalar path calls it for one state, the batch
+for each thread's range of chunks.
+
 Private layer: arrays and scalars in, ``out`` arrays, status codes per state; nothing here raises.
 
 Per state: the temperature-dependent model parameters (``tparams_into``) and g0_i(T) are computed only when T
@@ -19,7 +23,8 @@ differs from the previous state of the chunk. Then the equilibrium is solved fro
 
 Both solvers polish a converged answer to the rounding level (``POLISH_TOL``), so that the answer does not
 depend on the start either. When the extent method fails and the reactions span every composition change the
-element balances allow, Gibbs minimisation answers instead (the answer's METHOD column says so).
+element balances allow, the state is solved again by Gibbs minimisation, which answers instead (the answer's
+METHOD column says so; ``solve_one``).
 
 At fixed volume an outer safeguarded secant iteration on ln P brings the equilibrium mixture's volume
 n_T Z R T / P to the given V, within P_FLOOR <= P <= P_CEILING (bracketed once the sign of the mismatch has
@@ -29,8 +34,9 @@ the vessel at that density.
 A converged answer is checked before it is reported: every element balance closed (``element_residuals``), every
 output finite, and the model inside its range (truncated virial: |Z - 1| <= VIRIAL_MAX_DEPARTURE;
 Lewis-Randall rule: P <= LEWIS_RANDALL_P_MAX); otherwise the status says what failed. Work buffers are
-allocated once per chunk (``make_work``, a ``WorkBuffers``); answers are written as one packed float row and one
-integer row per state (``hipeq.solvers._arrays.answer_layout``, ``INT_COLUMNS``).
+allocated once per thread (``make_work``, a ``WorkBuffers``) and reset at each chunk's start; answers are written
+as one packed float row and one integer row per state (``hipeq.solvers._arrays.answer_layout``,
+``INT_COLUMNS``).
 """
 from __future__ import annotations
 
