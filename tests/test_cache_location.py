@@ -208,6 +208,41 @@ def test_notice_once_on_a_cold_folder_and_never_on_a_warm_one(tmp_path: Path) ->
     assert fresh.count(NOTICE) == 1, fresh
 
 
+VARIANT_NOTICE = "hipeq: compiling the part of the numerical core this call needs for the first time"
+VARIANTS = '''
+from hipeq._jit import kernel
+
+
+def scaled(factor):
+    @kernel
+    def scale(x):
+        return factor * x
+    return scale
+
+
+VARIANTS = {f: scaled(f) for f in (2.0, 3.0)}
+'''
+
+
+def compile_variant(folder: Path, cache: Path, factor: float) -> str:
+    """In a fresh process, call one closure variant (as the solver paths of hipeq.solvers._driver are built);
+    return the process's stderr."""
+    (folder / "variant_kernels.py").write_text(VARIANTS)
+    code = (f"import sys; sys.path.insert(0, {str(folder)!r}); import variant_kernels as m; "
+            f"assert m.VARIANTS[{factor!r}](1.0) == {factor!r}")
+    return run([sys.executable, "-c", code], clean_env(HIPEQ_CACHE_DIR=str(cache)), folder).stderr
+
+
+def test_a_variant_compiled_later_says_so_once(tmp_path: Path) -> None:
+    cache = tmp_path / "cache"
+    first = compile_variant(tmp_path, cache, 2.0)  # a cold folder: the first-run notice only
+    assert first.count(NOTICE) == 1 and VARIANT_NOTICE not in first, first
+    other = compile_variant(tmp_path, cache, 3.0)  # the sibling variant, compiled on first use later
+    assert other.count(VARIANT_NOTICE) == 1 and NOTICE not in other, other
+    again = compile_variant(tmp_path, cache, 3.0)  # found in the cache: nothing to say
+    assert VARIANT_NOTICE not in again and NOTICE not in again, again
+
+
 def test_notice_silenced_by_hipeq_quiet(tmp_path: Path) -> None:
     stderr = compile_probe(tmp_path, tmp_path / "cache", HIPEQ_QUIET="1")
     assert NOTICE not in stderr, stderr

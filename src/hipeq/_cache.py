@@ -222,14 +222,20 @@ class _FirstCompileNotice(_event.Listener):
     numba broadcasts ``numba:compile`` only on a cache miss (``Dispatcher.compile`` after ``load_overload``). The
     line is printed when the function being compiled has no index file in its folder yet, i.e. not when a known
     function merely meets new argument types; at most once per process.
+
+    A variant built by a factory (a closure, such as one solver path of ``hipeq.solvers._driver``: compiled the
+    first time a call needs it, into the index file its sibling variants share) gets a line of its own when it
+    misses the cache, once per variant and process: a sealed vessel's first call can compile for 15 s after the
+    first answer's compile was announced and done.
     """
 
     def __init__(self) -> None:
         self.done = False
+        self.depth = 0  # compilations in progress (numba compiles callees inside their caller's compilation)
+        self.variants: set[int] = set()  # ids of the closure variants announced in this process
 
     def on_start(self, event: Any) -> None:
-        if self.done:
-            return
+        self.depth += 1
         try:
             dispatcher = event.data["dispatcher"]
             path = dispatcher.stats.cache_path
@@ -239,21 +245,29 @@ class _FirstCompileNotice(_event.Listener):
             return
         if not path or not str(path).startswith(str(_DIR) + os.sep):
             return
+        variant = "<locals>" in qualname
+        if self.depth > 1 or (self.done and not variant) or id(dispatcher) in self.variants:
+            return
         # numba's index name: "<file stem>.<qualname>-<first line>.py<XY>.nbi" (numba.core.caching._CacheImpl)
         prefix = f"{Path(code.co_filename).stem}.{qualname.replace('<', '').replace('>', '')}-{code.co_firstlineno}."
         try:
-            if any(n.startswith(prefix) and n.endswith(".nbi") for n in os.listdir(path)):
-                return
+            known = any(n.startswith(prefix) and n.endswith(".nbi") for n in os.listdir(path))
         except OSError:
-            pass
-        self.done = True
-        if not _quiet():
-            print(f"hipeq: compiling the numerical core into {_DIR} (first run after an install or update: up to "
-                  "a minute or two; later runs load it in about a second; HIPEQ_QUIET=1 hides this)",
-                  file=sys.stderr, flush=True)
+            known = False
+        if variant:
+            self.variants.add(id(dispatcher))
+        if not known and not self.done:
+            self.done = True
+            if not _quiet():
+                print(f"hipeq: compiling the numerical core into {_DIR} (first run after an install or update: up "
+                      "to a minute or two; later runs load it in about a second; HIPEQ_QUIET=1 hides this)",
+                      file=sys.stderr, flush=True)
+        elif variant and known and not _quiet():  # (a variant first met in a cold folder: the line above said it)
+            print("hipeq: compiling the part of the numerical core this call needs for the first time (about "
+                  "10-20 s; kept for later runs)", file=sys.stderr, flush=True)
 
     def on_end(self, event: Any) -> None:
-        pass
+        self.depth -= 1
 
 
 def _install() -> Path:
