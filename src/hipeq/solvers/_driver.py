@@ -765,7 +765,7 @@ def solve_one(system: SystemArrays, patterns: PatternArrays, T: float, PV: float
     _PATHS[opts.method, opts.fixed_volume](
         (system, patterns), system, patterns, one_T, one_PV, one_n0, one_pat, one_ln_k, guesses, one_valid, opts, 1,
         rows, ints_one, work)
-    if ints[STATUS] in FALLBACK_STATUSES and _fallback_possible(system, opts):
+    if ints.item(STATUS) in FALLBACK_STATUSES and _fallback_possible(system, opts):
         iterations, outer = int(ints[ITERATIONS]), int(ints[OUTER])
         gibbs = opts._replace(method=METHOD_GIBBS, guess=False)  # from the cold starts, as after any failure
         _PATHS[SolverPath(METHOD_GIBBS, opts.fixed_volume)](

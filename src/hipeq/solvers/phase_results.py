@@ -270,9 +270,7 @@ def split_unstable(system: Any, result: Any, unstable: np.ndarray | None = None)
     (screened) stability test (:func:`unstable_states`, or the flat indices ``unstable`` when the caller has
     them) replaced by its two-phase answer, when that converged and lowered the Gibbs energy. Returns the same
     object when nothing changed."""
-    import functools
-
-    from hipeq.solvers.result import EquilibriumResult
+    from hipeq.solvers.result import EquilibriumResult, cached_names
 
     if result.fixed_volume or system.model.code != K.MODEL_CUBIC:
         return result
@@ -301,8 +299,7 @@ def split_unstable(system: Any, result: Any, unstable: np.ndarray | None = None)
     if isinstance(result, EquilibriumResult):
         answer, f = answers[0]
         new = object.__new__(EquilibriumResult)
-        cached = {name for klass in type(result).__mro__ for name, value in vars(klass).items()
-                  if isinstance(value, functools.cached_property)}
+        cached = cached_names(result)
         new.__dict__.update({key: value for key, value in result.__dict__.items() if key not in cached})
         new.__dict__.update(P=result.P, V=float(f["V"]), Z=float(f["Z"]), G_RT=float(f["G_RT"]),
                             _amounts=_frozen(f["amounts"]), _y=_frozen(f["y"]), _ln_phis=_frozen(f["ln_phis"]),

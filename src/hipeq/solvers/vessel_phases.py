@@ -38,7 +38,6 @@ engineering practice.
 """
 from __future__ import annotations
 
-import functools
 import math
 from dataclasses import dataclass
 from typing import Any
@@ -233,16 +232,11 @@ def fill_vessels(system: Any, result: Any, volume: Any, *, method: str = "extent
     return _batch(result, found, notes, V)
 
 
-def _cached_names(result: Any) -> set[str]:
-    return {name for klass in type(result).__mro__ for name, value in vars(klass).items()
-            if isinstance(value, functools.cached_property)}
-
-
 def _scalar(result: Any, search: VesselSearch | None, note: str | None, V: float) -> Any:
-    from hipeq.solvers.result import EquilibriumResult
+    from hipeq.solvers.result import EquilibriumResult, cached_names
 
     new = object.__new__(EquilibriumResult)
-    cached = _cached_names(result)
+    cached = cached_names(result)
     if search is None:  # status 5 kept, with reason 9 and the note
         new.__dict__.update({key: value for key, value in result.__dict__.items() if key not in cached})
         new.__dict__.update(reason=C.REASON_TWO_PHASE_NOT_FOUND, _vessel_notes={0: note})
