@@ -328,7 +328,7 @@ def _cubic_mix_sums(y, aij, bi, si):
     return a, b
 
 
-@inline_kernel
+@kernel
 def _cubic_core(T, P, y, aij, bi, consts, out, si, z_hint):
     """ln phi_i of the cubic mixture into ``out`` (Michelsen & Mollerup 2007, ch. 3):
 
