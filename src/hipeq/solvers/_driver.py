@@ -803,9 +803,10 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
     (``answer_layout``), ``out_ints`` (n, INT_COLUMNS) its integer row.
 
     The chunks are split into ``numba.get_num_threads()`` contiguous ranges, each solved on a Python thread of
-    its own: its states gathered into solving order (``_gather``), solved by one call of the path's compiled
-    chunk solver (the one the scalar path calls; it runs without the GIL and starts each chunk as if alone, so
-    the answers do not depend on the thread count), and scattered back (``_scatter``). States the extent method
+    its own, in blocks of whole chunks (``RANGE_BLOCK`` states): each block gathered into solving order
+    (``_gather``), solved by one call of the path's compiled chunk solver (the one the scalar path calls; it runs
+    without the GIL and starts each chunk as if alone, so the answers do not depend on the thread count), and
+    scattered back (``_scatter``). States the extent method
     left STALLED or SINGULAR are then solved alone by ``solve_one``, which falls back to Gibbs minimisation:
     their answers are those of the scalar path."""
     n = T.shape[0]
