@@ -82,6 +82,9 @@ COLD_FRACTIONS = (0.5, 0.02, 0.98)
 START_GUESS = 0
 START_WARM = 1
 START_COLD = 2
+# states per call of the chunk solver in a batch (whole chunks): their answer rows (~0.3 kB each) stay in the
+# processor's cache until scattered back; one call per thread's whole range wrote and re-read megabytes
+RANGE_BLOCK = 1024
 
 
 @kernel
@@ -806,9 +809,8 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
     its own, in blocks of whole chunks (``RANGE_BLOCK`` states): each block gathered into solving order
     (``_gather``), solved by one call of the path's compiled chunk solver (the one the scalar path calls; it runs
     without the GIL and starts each chunk as if alone, so the answers do not depend on the thread count), and
-    scattered back (``_scatter``). States the extent method
-    left STALLED or SINGULAR are then solved alone by ``solve_one``, which falls back to Gibbs minimisation:
-    their answers are those of the scalar path."""
+    scattered back (``_scatter``). States the extent method left STALLED or SINGULAR are then solved alone by
+    ``solve_one``, which falls back to Gibbs minimisation: their answers are those of the scalar path."""
     n = T.shape[0]
     nc = N0.shape[1]
     nr = system.nu.shape[0]
@@ -862,9 +864,6 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
 
 
 _BATCH = object()  # a key of solve_many's direct calls (hipeq._jit.DirectCall)
-# states per call of the chunk solver in a batch (whole chunks): their answer rows (~0.3 kB each) stay in the
-# processor's cache until scattered back; one call per thread's whole range wrote and re-read megabytes
-RANGE_BLOCK = 1024
 _pool: ThreadPoolExecutor | None = None
 _pool_workers = 0
 _pool_lock = threading.Lock()
@@ -880,6 +879,7 @@ def _thread_pool(threads: int) -> ThreadPoolExecutor:
             _pool_workers = threads - 1
             _pool = ThreadPoolExecutor(max_workers=_pool_workers, thread_name_prefix="hipeq")
         return _pool
+
 
 @kernel
 def _gather(order, T, PV, N0, pats, valid, ln_k_user, Tl, PVl, N0l, patl, validl, userl):
