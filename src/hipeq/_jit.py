@@ -19,6 +19,8 @@ from collections.abc import Callable
 from typing import Any, TypeVar
 
 from numba import njit
+from numba.core import config as numba_config
+from numba.core.registry import CPUDispatcher
 
 from hipeq import _cache  # noqa: F401  (sets numba's cache folder: must run before any kernel is decorated)
 
@@ -32,28 +34,64 @@ FASTMATH = frozenset({"contract", "arcp", "reassoc", "nsz"})
 ERROR_MODEL = "numpy"  # x / 0.0 -> inf or NaN (caught by the kernels' finiteness checks), never an exception
 
 
+# Every compiled function here is built without numba's C-callable wrapper (``no_cfunc_wrapper``): hipeq never
+# passes a compiled function as a first-class value, and the wrapper was lowered, optimised and machine-coded for
+# each of them on the first run.
+_KERNEL_OPTIONS = dict(_nrt=False, fastmath=FASTMATH, error_model=ERROR_MODEL, no_cfunc_wrapper=True)
+
+
 def kernel(fn: F) -> F:
     """Compile ``fn`` as an allocation-free kernel: ``njit(cache=True, _nrt=False, fastmath=FASTMATH,
     nogil=True)``. Called from Python it releases the GIL, so that Python threads run kernels side by side (the
     batch solver's chunks, ``hipeq.solvers._driver.solve_many``)."""
-    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH), error_model=ERROR_MODEL, nogil=True)(fn)
+    return njit(cache=True, nogil=True, **_options())(fn)
+
+
+class _InnerDispatcher(CPUDispatcher):
+    """numba's dispatcher for a function compiled without a Python entry point: compiled callers link its machine
+    code as usual, a call from Python raises instead of jumping to the entry point that was never built."""
+
+    def __call__(self, *args: Any, **kwargs: Any) -> Any:
+        raise TypeError(f"hipeq: {self.py_func.__module__}.{self.py_func.__qualname__} is compiled without a Python "
+                        f"entry point (hipeq._jit.inner_kernel) and runs only inside other compiled functions; "
+                        f"call it from a kernel, or decorate it with kernel if Python needs it")
+
+
+def inner_kernel(fn: F) -> F:
+    """As :func:`kernel`, for a function that only other compiled functions call: compiled without numba's Python
+    entry point (``no_cpython_wrapper``). That entry point unboxes every argument from Python objects; for the
+    solver's functions, which take a dozen or more arrays and named tuples, it was about a sixth of the machine
+    code of the first answer and a fifth of its cold compile (docs/performance.md, "Compiled helpers without a
+    Python entry"). Called from Python the function raises ``TypeError`` (:class:`_InnerDispatcher`); without the
+    JIT it is the plain Python function."""
+    if numba_config.DISABLE_JIT:
+        return fn
+    dispatcher = _InnerDispatcher(py_func=fn, locals={}, targetoptions=_options(nopython=True, no_cpython_wrapper=True))
+    dispatcher.enable_caching()
+    return dispatcher  # type: ignore[return-value]
 
 
 def inline_kernel(fn: F) -> F:
     """As :func:`kernel`, and compiled into each caller (numba IR inlining) instead of being called: for the small
     pieces of the model evaluation, where handing over the arrays cost more than the arithmetic."""
-    return njit(cache=True, _nrt=False, fastmath=set(FASTMATH), error_model=ERROR_MODEL, inline="always")(fn)
+    return njit(cache=True, inline="always", **_options())(fn)
 
 
 def entry(fn: F) -> F:
     """Compile an entry point that may allocate (work buffers, outputs): ``njit(cache=True)`` with the numpy error
     model. Called from Python; it allocates and hands the buffers down to :func:`kernel` functions."""
-    return njit(cache=True, error_model=ERROR_MODEL)(fn)
+    return njit(cache=True, error_model=ERROR_MODEL, no_cfunc_wrapper=True)(fn)
 
 
 def parallel_entry(fn: F) -> F:
     """As :func:`entry`, with ``parallel=True``: ``numba.prange`` loops run on numba's thread pool."""
-    return njit(cache=True, parallel=True, error_model=ERROR_MODEL)(fn)
+    return njit(cache=True, parallel=True, error_model=ERROR_MODEL, no_cfunc_wrapper=True)(fn)
+
+
+def _options(**extra: Any) -> dict[str, Any]:
+    """The kernels' numba options (a fresh copy with its own fast-math set), with ``extra`` added."""
+    options = dict(_KERNEL_OPTIONS, fastmath=set(FASTMATH), **extra)
+    return options
 
 
 class DirectCall:

@@ -17,8 +17,26 @@ import math
 import numpy as np
 import pytest
 
+from hipeq._jit import kernel
 from hipeq.models import _kernels as K
 from hipeq.models import build_model
+
+
+# Compiled callers of the kernels under test that only compiled code may call (hipeq._jit.inner_kernel).
+@kernel
+def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scratch):
+    return K.ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scratch)
+
+
+@kernel
+def cubic_z(A, B, d1, d2):
+    return K.cubic_z(A, B, d1, d2)
+
+
+@kernel
+def cubic_z_from(A, B, d1, d2, z_hint):
+    return K.cubic_z_from(A, B, d1, d2, z_hint)
+
 
 NAMES = ["N2", "H2", "NH3", "CH4", "H2O", "CO2"]
 CONFIGS = {
@@ -76,8 +94,8 @@ def test_reduced_jacobian_equals_the_full_one_reduced(config):
             phi, M = np.empty(nc), np.full((3, 3), np.nan)
             scratch = np.zeros((3, nc))
             scratch[2, 0] = hint
-            z, root = K.ln_phi_reduced_tp(model.code, T, P, y, aij, bi, model.consts, W, neff, phi, M,
-                                          np.empty((nc, nc)), scratch)
+            z, root = ln_phi_reduced_tp(model.code, T, P, y, aij, bi, model.consts, W, neff, phi, M,
+                                        np.empty((nc, nc)), scratch)
             assert root == root_full
             assert z == pytest.approx(z_full, rel=1e-14)
             np.testing.assert_allclose(phi, full_phi, rtol=0.0, atol=1e-14)  # rounding only (fast-math order)
@@ -101,7 +119,7 @@ def test_cubic_roots_match_numpy(deltas):
     for _ in range(20000):
         A = 10 ** rng.uniform(-3.0, 1.5)
         B = 0.5 * 10 ** rng.uniform(-4.0, 0.0)
-        z, root = K.cubic_z(A, B, d1, d2)
+        z, root = cubic_z(A, B, d1, d2)
         c2 = (u - 1.0) * B - 1.0
         c1 = A + w * B * B - u * B - u * B * B
         c0 = -(A * B + w * B * B + w * B ** 3)
@@ -116,6 +134,6 @@ def test_cubic_roots_match_numpy(deltas):
         checked[root] += 1
         # from a start near any real root (or anywhere above B) the hinted solver must find the same root
         for hint in (*(r * f for r in real for f in (0.97, 1.0, 1.03)), B * 1.001, 2.0):
-            z_h, root_h = K.cubic_z_from(A, B, d1, d2, float(hint))
+            z_h, root_h = cubic_z_from(A, B, d1, d2, float(hint))
             assert root_h == root and abs(z_h - z) <= 1e-12 * z, (A, B, hint, z_h, z)
     assert all(count > 100 for count in checked.values()), checked

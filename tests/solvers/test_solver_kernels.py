@@ -7,9 +7,22 @@ import pytest
 import hipeq
 from hipeq.data.species import species
 from hipeq.data.thermochem import R, standard_gibbs
-from hipeq.solvers._common import cholesky_solve, g0_into, lu_solve
+from hipeq._jit import kernel
+from hipeq.solvers import _common
+from hipeq.solvers._common import g0_into
 from hipeq.solvers._patterns import analyse, null_space
 from hipeq.solvers._tables import g0_table
+
+
+# Compiled callers of the solvers' linear algebra, which only compiled code may call (hipeq._jit.inner_kernel).
+@kernel
+def cholesky_solve(H, rhs, m, x, L, s):
+    return _common.cholesky_solve(H, rhs, m, x, L, s)
+
+
+@kernel
+def lu_solve(M, rhs, m, x, piv):
+    return _common.lu_solve(M, rhs, m, x, piv)
 
 
 @pytest.mark.parametrize("m", [1, 2, 5, 9])

@@ -27,7 +27,7 @@ import math
 import numpy as np
 from numba import prange
 
-from hipeq._jit import entry, inline_kernel, kernel, parallel_entry
+from hipeq._jit import entry, inline_kernel, inner_kernel, kernel, parallel_entry
 
 from hipeq.constants import R  # J/(mol K)
 
@@ -82,7 +82,7 @@ def effective_critical(T, comp, i):
 # ---------------------------------------------------------------------------------------------------------
 # temperature-dependent parameters
 # ---------------------------------------------------------------------------------------------------------
-@kernel
+@inner_kernel
 def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
     nc = comp.shape[0]
     oa = consts[OMEGA_A]
@@ -132,7 +132,7 @@ def _cubic_tdep(T, comp, consts, kmat, aij, bi, daij, dbi):
             daij[j, i] = daij[i, j]
 
 
-@kernel
+@inner_kernel
 def _virial_tdep(T, comp, kmat, bij, dbij):
     """Second virial coefficients B_ij(T) [m3/mol] from the Pitzer-type generalized correlation.
 
@@ -243,7 +243,7 @@ def _g_of_root(z, A, B, d1, d2):
     return z - 1.0 - math.log(z - B) - A / (B * (d1 - d2)) * math.log((z + d1 * B) / (z + d2 * B))
 
 
-@inline_kernel
+@inner_kernel
 def cubic_z(A, B, d1, d2):
     """Compressibility factor of the generic cubic at reduced parameters A = aP/(RT)^2, B = bP/(RT).
 
@@ -255,7 +255,7 @@ def cubic_z(A, B, d1, d2):
     return cubic_z_from(A, B, d1, d2, 0.0)
 
 
-@inline_kernel
+@inner_kernel
 def cubic_z_from(A, B, d1, d2, z_hint):
     """As ``cubic_z``, but with ``z_hint`` > B (a solver's previous Z at a nearby state) Newton's method from
     z_hint replaces the closed form: two or three steps instead of cube roots or an arccosine. The point where
@@ -328,7 +328,7 @@ def _cubic_mix_sums(y, aij, bi, si):
     return a, b
 
 
-@kernel
+@inner_kernel
 def _cubic_core(T, P, y, aij, bi, consts, out, si, z_hint):
     """ln phi_i of the cubic mixture into ``out`` (Michelsen & Mollerup 2007, ch. 3):
 
@@ -416,7 +416,7 @@ def _cubic_dn_parts(T, P, z, a, b, lq, bi, si, consts, Pi):
     return F_nB, F_BD, F_BB, F_D, 1.0 / (rt * P_V)
 
 
-@kernel
+@inner_kernel
 def _cubic_ln_phi_dn(T, P, y, aij, bi, consts, out, jac, scratch):
     """ln phi_i and jac_ij = n d ln phi_i / d n_j at fixed T, P (Michelsen & Mollerup 2007, ch. 2:
     d ln phi_i/d n_j = F_ij + 1/n + P_i P_j / (R T P_V)); ``scratch`` (2, nc) holds s_i and P_i."""
@@ -496,7 +496,7 @@ def _cubic_ln_phi_reduced(T, P, y, aij, bi, consts, W, neff, out, M, scratch):
     return z, root
 
 
-@kernel
+@inner_kernel
 def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
     """ln phi_i and d ln phi_i / dT at fixed P, n (Michelsen & Mollerup 2007:
     d ln phi_i/dT = F_iT + 1/T + P_i P_T / (R T P_V)), with temperature-dependent b for quantum gases.
@@ -548,7 +548,7 @@ def _cubic_ln_phi_dT(T, P, y, aij, bi, daij, dbi, consts, out, dT):
 # ---------------------------------------------------------------------------------------------------------
 # virial and Lewis-Randall
 # ---------------------------------------------------------------------------------------------------------
-@kernel
+@inner_kernel
 def _virial_ln_phi(T, P, y, bij, out):
     """ln phi_i = (2 sum_j y_j B_ij - B) P / (R T), Z = 1 + B P / (R T) (truncated virial in pressure)."""
     nc = y.shape[0]
@@ -566,7 +566,7 @@ def _virial_ln_phi(T, P, y, bij, out):
     return z, (ROOT_SINGLE if z > 0.0 else ROOT_INVALID), bmix
 
 
-@kernel
+@inner_kernel
 def _pure_cubic(T, P, a, b, d1, d2):
     rt = R * T
     A = a * P / (rt * rt)
@@ -665,7 +665,7 @@ def ln_phi_hinted_tp(code, T, P, y, aij, bi, consts, out, scratch):
     return ln_phi_tp(code, T, P, y, aij, bi, consts, out)
 
 
-@kernel
+@inner_kernel
 def ln_phi_reduced_tp(code, T, P, y, aij, bi, consts, W, neff, out, M, jac, scratch):
     """ln phi_i and M = W^T J W (leading neff x neff block), J_ij = n d ln phi_i / d n_j at fixed T, P, for the
     columns of W (nc x >= neff): what a Newton step in reaction extents needs. The cubic forms M directly

@@ -36,7 +36,7 @@ import math
 
 import numpy as np
 
-from hipeq._jit import entry, kernel
+from hipeq._jit import entry, inner_kernel
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_VIRIAL, OMEGA, OMEGA_A, OMEGA_B,
                                    ROOT_INVALID,
                                    ROOT_LIQUID, TC, R, effective_critical, ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_tp,
@@ -69,7 +69,7 @@ F_TPD, F_TRIAL_Z, F_FEED_Z = 0, 1, 2
 N_FLOAT = 3
 
 
-@kernel
+@inner_kernel
 def _tpd_of(W, nc, present, lnphi, d):
     """(tm(W), tpd(w), W_T, max |G_i|) with G_i = ln W_i + ln phi_i(w) - d_i over the present components."""
     wt = 0.0
@@ -88,7 +88,7 @@ def _tpd_of(W, nc, present, lnphi, d):
     return tm, tpd, wt, gmax
 
 
-@kernel
+@inner_kernel
 def _tpd_ln(W, ln_W, nc, present, lnphi, d):
     """As ``_tpd_of`` with ln W_i given (``ln_W``): no logarithm per component."""
     wt = 0.0
@@ -108,7 +108,7 @@ def _tpd_ln(W, ln_W, nc, present, lnphi, d):
     return tm, tpd, wt, gmax
 
 
-@kernel
+@inner_kernel
 def _near_known(ln_W, tm, nc, present, known, known_tm, n_known):
     """True when the trial (ln W, tm) lies within TRIVIAL_RADIUS2 of a known local minimum of tm (a row of
     ``known``, ln W there; the first is the tested phase itself) with tm not below that minimum's tm."""
@@ -125,7 +125,7 @@ def _near_known(ln_W, tm, nc, present, known, known_tm, n_known):
     return False
 
 
-@kernel
+@inner_kernel
 def locally_stable(nc, present, W, wt, jac, margin, H, L, x):
     """True when W (unnormalised, total ``wt``; a stationary point of tm, e.g. the tested phase z itself with
     wt = 1) is a strict local minimum of tm with room to spare: the scaled Hessian of tm there,
@@ -143,13 +143,13 @@ def locally_stable(nc, present, W, wt, jac, margin, H, L, x):
     return _cholesky_solve(H, x, nc, present, L, x)
 
 
-@kernel
+@inner_kernel
 def _copy(src, dst):
     for i in range(src.shape[0]):
         dst[i] = src[i]
 
 
-@kernel
+@inner_kernel
 def _normalise(W, nc, present, w):
     wt = 0.0
     for i in range(nc):
@@ -159,7 +159,7 @@ def _normalise(W, nc, present, w):
     return wt
 
 
-@kernel
+@inner_kernel
 def _cholesky_solve(H, g, nc, present, L, x):
     """Solve H x = -g over the present components by Cholesky (L is scratch). False if H is not positive
     definite."""
@@ -196,7 +196,7 @@ def _cholesky_solve(H, g, nc, present, L, x):
     return True
 
 
-@kernel
+@inner_kernel
 def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratch, H, L, alpha, step, W_try,
                best_w, best, ln_W, known, known_tm, n_known):
     """Seek a stationary point of tm from the trial W (overwritten; ``ln_W``: ln W, kept up to date). ``best`` =
@@ -302,7 +302,7 @@ def _one_trial(code, T, P, d, present, aij, bi, consts, W, w, lnphi, jac, scratc
     return gmax < STABILITY_GRAD_TOL, iterations, False
 
 
-@kernel
+@inner_kernel
 def _trial_start(kind, T, P, z, ln_z, present, comp, heaviest, W, ln_W):
     """Initial W of trial ``kind`` (see ``TRIAL_*``) and its ln W over the present components (``ln_z``: ln of
     the tested composition there)."""
@@ -476,7 +476,7 @@ def stability_states(code, T, P, Z, comp, consts, kmat, screen, exits, trials, f
         ints[k, I_ITERATIONS] = total
 
 
-@kernel
+@inner_kernel
 def one_root_everywhere(T, aij, bi, consts, present):
     """True when the one-fluid cubic has a single volume root at every composition of the present components:
     a/(b R T) <= c max_i a_i/(b_i R T) < Omega_a/Omega_b with c = max(1, max_ij a_ij/sqrt(a_i a_j)) (the first
@@ -497,7 +497,7 @@ def one_root_everywhere(T, aij, bi, consts, present):
     return True
 
 
-@kernel
+@inner_kernel
 def _label(T, P, y, bi, z, root):
     """The root code, with ROOT_LIQUID also where v/b < LIQUID_LIKE_REDUCED_VOLUME (the rule of
     ``hipeq.models._states.finish_states``)."""

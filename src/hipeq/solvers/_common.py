@@ -16,7 +16,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from hipeq._jit import entry, inline_kernel, kernel
+from hipeq._jit import entry, inline_kernel, inner_kernel, kernel
 from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_hinted_tp, ln_phi_reduced_tp
 
 # ---------------------------------------------------------------------------------------------------------
@@ -186,7 +186,7 @@ def python_views(wb):
 # ---------------------------------------------------------------------------------------------------------
 # linear algebra on the leading (m, m) block of preallocated buffers
 # ---------------------------------------------------------------------------------------------------------
-@kernel
+@inner_kernel
 def cholesky_solve(H, rhs, m, x, L, s):
     """Solve H x = rhs for symmetric positive definite H (leading m x m block), with Jacobi scaling.
 
@@ -221,7 +221,7 @@ def cholesky_solve(H, rhs, m, x, L, s):
     return cholesky_resolve(L, s, rhs, m, x)
 
 
-@kernel
+@inner_kernel
 def cholesky_resolve(L, s, rhs, m, x):
     """Solve H x = rhs with the factor left by ``cholesky_solve`` (S H S = L L^T, S = diag(s)); False when the
     answer is not finite (e.g. no factor has been formed yet)."""
@@ -242,7 +242,7 @@ def cholesky_resolve(L, s, rhs, m, x):
     return True
 
 
-@kernel
+@inner_kernel
 def lu_solve(M, rhs, m, x, piv):
     """Solve M x = rhs (leading m x m block; M and rhs are overwritten) by Gaussian elimination with partial
     pivoting. Returns False when a pivot is zero to working precision or the answer is not finite."""
@@ -318,7 +318,7 @@ def g0_into(T, u_lo, h, table, out):
                   + h01 * table[k + 1, 0, i] + h * h11 * table[k + 1, 1, i] + hh * h21 * table[k + 1, 2, i])
 
 
-@kernel
+@inner_kernel
 def adjust_g0(g0, nu, nu_pinv, ln_k_user, ln_k_tab):
     """Shift g0 by the least change that makes -nu g0 equal the user's ln K:
     g0 <- g0 + nu^+ (ln K_table - ln K_user), with nu nu^+ = I (nu has full row rank)."""
@@ -373,22 +373,6 @@ def evaluate(mode, code, T, P, ln_p, n, active, g0, aij, bi, consts, y, ln_phi, 
         else:
             mu[i] = 0.0
     return n_t, z, root, g
-
-
-@kernel
-def reaction_residuals(nu, mu, frozen, out):
-    """Residual of each equilibrium condition, sum_i nu_ki mu_i / RT
-    = sum_i nu_ki (ln y_i + ln phi_i) + (sum_i nu_ki) ln(P/P0) - ln K_k; 0 for reactions that cannot proceed."""
-    nr, nc = nu.shape
-    worst = 0.0
-    for r in range(nr):
-        v = 0.0
-        if not frozen[r]:
-            for i in range(nc):
-                v += nu[r, i] * mu[i]
-        out[r] = v
-        worst = max(worst, abs(v))
-    return worst
 
 
 @kernel

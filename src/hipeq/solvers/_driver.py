@@ -48,7 +48,7 @@ from typing import NamedTuple
 import numba
 import numpy as np
 
-from hipeq._jit import DirectCall, inline_kernel, kernel
+from hipeq._jit import DirectCall, inline_kernel, inner_kernel, kernel
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
 from hipeq.models.inputs import P_MAX
@@ -150,7 +150,7 @@ def several_roots_possible(code, T, aij, bi, consts, active, n0, null, n_null, p
     return CONDENSABLE
 
 
-@kernel
+@inner_kernel
 def _polytope_vertices(active, n0, null, n_null, vertices, vertex_info, kkt, kkt_rhs, kkt_solution, kkt_index, pivots):
     """The vertices of {n = n0 + null t >= 0} (every set of n_null active species at zero whose solution is
     feasible) into vertices[1:], the feed into vertices[0], their count into vertex_info[0] and vertex_info[1] = 1;
@@ -217,7 +217,7 @@ def _polytope_vertices(active, n0, null, n_null, vertices, vertex_info, kkt, kkt
     return True
 
 
-@kernel
+@inner_kernel
 def _cold_start(n0, active, direction, xdir, nr, fraction, n, extents):
     """Interior start n = n0 + eps (p - f), xi = eps x_p, with eps ``fraction`` of the largest step keeping
     n >= 0 (p: an interior point of the pattern's feasible set for the indicator feed f, from Python)."""
@@ -238,7 +238,7 @@ def _cold_start(n0, active, direction, xdir, nr, fraction, n, extents):
         extents[r] = eps * xdir[r]
 
 
-@kernel
+@inner_kernel
 def _start_from_extents(n0, nu, active, extents, n):
     """n = n0 + nu^T xi from row S_XI; False when an active amount is not positive."""
     nc = n0.shape[0]
@@ -267,7 +267,7 @@ def _solve_at_pressure(method, code, T, P, n0, W, Zb, neff, Q, neq, Nb, n_null, 
                        coupled, tol_g, max_iter, w)
 
 
-@kernel
+@inner_kernel
 def _boundary_reason(code, at_ceiling, V, n_t, y, b_i):
     """Why a sealed-vessel search ended at a pressure limit."""
     if not at_ceiling:
@@ -447,7 +447,7 @@ def _record(row, ints, layout, status, reason, root, method, P, V, z, G, n0, act
     ints[LIQUID] = 1 if liquid else 0
 
 
-@kernel
+@inner_kernel
 def _check_answer(row, ints, layout, code, n0, A, fixed_volume):
     """Make every output finite whatever the status, write the element residuals of the answer, and hold a
     converged answer to what status 0 promises."""
@@ -536,7 +536,7 @@ def _finish_state(system, n0, roots, iterations, outer, fixed_volume, layout, w,
     return True
 
 
-@kernel
+@inner_kernel
 def _mark_invalid(n0, PV, method, fixed_volume, layout, row, ints):
     """The answer of a state that was not solved (invalid input): the feed as given, status INVALID_INPUT."""
     nc = n0.shape[0]

@@ -28,7 +28,7 @@ the true residuals meet the tolerance.
 """
 from __future__ import annotations
 
-from hipeq._jit import inline_kernel, kernel
+from hipeq._jit import inline_kernel, inner_kernel
 from hipeq.solvers._common import (CONVERGED, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE, SINGULAR, STALLED,
                                    WITH_PHI, WITH_REDUCED, cholesky_resolve, cholesky_solve, evaluate)
 
@@ -154,7 +154,7 @@ def _step(mode, code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, 
     return STALLED, n_t, z, 0, g
 
 
-@kernel
+@inner_kernel
 def predict_start(W, Zb, neff, active, g0, g0_prev, dlnp, L, scale, rhs, d, n, xi):
     """Move a warm start (the previous state's answer, in n and xi) by one Newton step for the change of
     conditions: the gradient there is W^T (Delta g0 + Delta ln P) to first order, with the fugacity coefficients
@@ -191,7 +191,7 @@ def predict_start(W, Zb, neff, active, g0, g0_prev, dlnp, L, scale, rhs, d, n, x
         xi[r] += alpha * v
 
 
-@kernel
+@inner_kernel
 def extent_solve(code, T, P, ln_p, g0, W, Zb, neff, active, xi, aij, bi, consts, coupled, tol, max_iter,
                  w):
     """Solve the equilibrium conditions in the reduced extents from the start in row F_N (amounts, positive on

@@ -30,7 +30,7 @@ from __future__ import annotations
 
 import math
 
-from hipeq._jit import inline_kernel, kernel
+from hipeq._jit import inline_kernel, inner_kernel
 from hipeq.solvers._common import (CONVERGED, ELEMENT_ATOL, FROZEN_PHI, MAX_ITERATIONS, NO_PHYSICAL_STATE,
                                    SINGULAR, WITH_JACOBIAN, WITH_PHI, cholesky_solve, evaluate, lu_solve)
 
@@ -197,7 +197,7 @@ def _update(neq, n, n_t, m, kkt_index, kkt_solution, potentials):
     return alpha
 
 
-@kernel
+@inner_kernel
 def gibbs_solve(code, T, P, ln_p, n0, g0, Q, neq, Nb, n_null, active, aij, bi, consts, coupled, tol, max_iter,
                 w):
     """Minimise G at fixed T, P from the start in row F_N (positive on the active species, zero elsewhere).
