@@ -166,14 +166,17 @@ def work_views(wb):
         g[2 * big:2 * big + 3])
 
 
-@entry
-def make_work(nc, nr, ne):
-    """New zeroed :class:`WorkBuffers` for systems of nc species, nr reactions and ne element rows."""
+def make_work(nc: int, nr: int, ne: int) -> WorkBuffers:
+    """New zeroed :class:`WorkBuffers` for systems of nc species, nr reactions and ne element rows.
+
+    Plain numpy, called from Python only (once per thread for scalar calls, once per thread's range of chunks in
+    a batch): compiled, its four array shapes cost a dozen of numba's allocation routines, about 2.5 s of the
+    first answer's cold compile, for a function that runs once per batch."""
     k = max(nr, ne, 1)
     big = nc + ne + 1
     return WorkBuffers(np.zeros(16 * nc + 12 * k + 1 + 2 * big), np.zeros((3, nc)), np.zeros((4, nc, nc)),
                        np.zeros((4, k, k)), np.zeros((big, big)), np.zeros((MAX_VERTICES + 1, nc)),
-                       np.zeros(2 * big + 3, dtype=np.int64), nc, k, big)
+                       np.zeros(2 * big + 3, dtype=np.int64), int(nc), int(k), int(big))
 
 
 @entry
