@@ -1,8 +1,8 @@
 """ln phi of the five-component ammonia-loop mixture (N2, H2, NH3, Ar, CH4) with Peng-Robinson.
 
 Measures, per state:
-- the compiled batch ``hipeq.models._kernels.states_batch`` (ln phi, d ln phi/dT, Z, root, g_res, h_res) on all
-  cores and on one core;
+- the compiled states ``hipeq.models._states.states_range`` (ln phi, d ln phi/dT, Z, root, g_res, h_res) over
+  all of them, split across all threads (``hipeq._threads.run_in_ranges``) and on one thread;
 - the public ``hipeq.fugacity_coefficients`` with arrays of states (the batch plus input checks and results);
 - one call of ``hipeq.fugacity_coefficients`` for one state from Python (latency);
 - for comparison, one ``thermo.PRMIX`` object with the same constants (what the baseline pays per evaluation);
@@ -24,7 +24,8 @@ DESCRIPTION = "ln phi, 5-component PR mixture: compiled batch, public call, kern
 
 def run(ctx: Context) -> list[Row]:
     import hipeq
-    from hipeq.models import _kernels as k
+    from hipeq._threads import run_in_ranges
+    from hipeq.models._states import states_range
 
     import kernel_loops as loops
 
@@ -44,30 +45,19 @@ def run(ctx: Context) -> list[Row]:
     repeat = ctx.scale(7, 3)
     all_threads = numba.config.NUMBA_NUM_THREADS
 
-    def batch() -> None:
-        k.states_batch(code, T, P, Y, comp, consts, kmat, ln_phis, dT, Z, roots, g, h)
+    def batch(threads: int) -> None:
+        run_in_ranges(n, threads, lambda first, last: states_range(code, T, P, Y, comp, consts, kmat, first, last,
+                                                                    ln_phis, dT, Z, roots, g, h))
 
-    batch()  # warm (compile or load from cache)
-    numba.set_num_threads(all_threads)
-    t_batch_all = best_time(batch, repeat) / n
-    numba.set_num_threads(1)
-    try:
-        t_batch_one = best_time(batch, repeat, clock="cpu") / n
-    finally:
-        numba.set_num_threads(all_threads)
+    batch(all_threads)  # warm (compile or load from cache)
+    t_batch_all = best_time(lambda: batch(all_threads), repeat) / n
+    t_batch_one = best_time(lambda: batch(1), repeat, clock="cpu") / n
 
     rows = [
-        Row(NAME, f"states_batch, {all_threads} threads, per state", t_batch_all * 1e9, "ns",
+        Row(NAME, f"states_range, {all_threads} threads, per state", t_batch_all * 1e9, "ns",
             note=f"{n} states: ln phi + d ln phi/dT + Z + g_res, h_res; wall time"),
-        Row(NAME, "states_batch, 1 thread, per state", t_batch_one * 1e9, "ns", note="CPU time"),
+        Row(NAME, "states_range, 1 thread, per state", t_batch_one * 1e9, "ns", note="CPU time"),
     ]
-
-    # the same work serially with scratch hoisted out of the loop: the cost of per-state allocation in states_batch
-    loops.loop_states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dT)
-    t_serial = best_time(lambda: loops.loop_states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dT),
-                         repeat, clock="cpu") / n
-    rows.append(Row(NAME, "same work, serial loop, scratch hoisted, per state", t_serial * 1e9, "ns",
-                    note="benchmarks/kernel_loops.py; vs states_batch 1 thread = per-state allocation cost"))
 
     # kernel pieces (one core)
     pieces = [
@@ -92,7 +82,7 @@ def run(ctx: Context) -> list[Row]:
     t_public = best_time(lambda: hipeq.fugacity_coefficients(names, T=T, P=P, y=Y, eos=case.eos),
                          repeat) / n
     rows.append(Row(NAME, f"fugacity_coefficients(arrays), {all_threads} threads, per state", t_public * 1e9, "ns",
-                    note=f"{n} states in one call, wall time; |ln phi - states_batch| <= {err_batch:.1e}"))
+                    note=f"{n} states in one call, wall time; |ln phi - states_range| <= {err_batch:.1e}"))
 
     # public face: one state from Python
     T1, P1, y1 = float(T[0]), float(P[0]), Y[0].tolist()
@@ -120,7 +110,7 @@ def run(ctx: Context) -> list[Row]:
     err_thermo = float(np.max(np.abs(ref_thermo - ln_phis[:m])))
     rows.append(Row(NAME, "thermo PRMIX, one state from Python (reference)", t_thermo * 1e6, "us",
                     note=f"CPU time; same Tc, Pc, omega, kij; max |ln phi - hipeq| = {err_thermo:.1e} over {m} states"))
-    rows.append(Row(NAME, "speed-up: states_batch 1 thread vs thermo PRMIX", t_thermo / t_batch_one, "x"))
+    rows.append(Row(NAME, "speed-up: states_range 1 thread vs thermo PRMIX", t_thermo / t_batch_one, "x"))
     ctx.details[NAME].update({"max_abs_dlnphi_vs_thermo": err_thermo, "max_abs_dlnphi_public_vs_batch": err_batch,
                               "model_mismatch_vs_thermo": baseline.model_mismatch(model, case.eos)})
     return rows

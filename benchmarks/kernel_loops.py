@@ -2,7 +2,7 @@
 
 Each loop runs on one thread (no prange) and returns a checksum so that the work cannot be optimised away.
 Scratch arrays are allocated once per loop, outside the timed per-state work, the way a solver kernel would hold
-them; ``states_batch`` itself allocates four small arrays per state, and the difference shows up in the table.
+them (``hipeq.models._states.states_range`` does the same, once per range of states).
 The per-state loops are compiled without numba's reference counting (``_nrt=False``, as hipeq's own kernels, see
 ``hipeq._jit``), so that the figures are those of the kernels and not of handing arrays to them.
 """
@@ -13,7 +13,7 @@ from numba import njit
 
 INNER = dict(cache=True, _nrt=False)
 
-from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_tp, residual_dT_tp, tdep_into
+from hipeq.models._kernels import ln_phi_dn_tp, ln_phi_tp, tdep_into
 
 
 @njit(cache=True)
@@ -85,19 +85,4 @@ def _loop_ln_phi_dn_fixed_T(code, T, P, Y, consts, aij, bi, out, jac, scratch):
     for k in range(P.shape[0]):
         z, root = ln_phi_dn_tp(code, T[0], P[k], Y[k], aij, bi, consts, out, jac, scratch)
         acc += out[0] + jac[0, 0] + z
-    return acc
-
-
-@njit(cache=True)
-def loop_states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT):
-    """What ``states_batch`` computes per state (tdep + ln phi + d ln phi/dT + g_res, h_res), serially and with
-    the scratch arrays hoisted out of the loop."""
-    nc = comp.shape[0]
-    acc = 0.0
-    aij, daij, bi, dbi = np.empty((nc, nc)), np.empty((nc, nc)), np.empty(nc), np.empty(nc)
-    for k in range(T.shape[0]):  # residual_dT_tp allocates for the Lewis-Randall model, so this loop keeps NRT
-        tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
-        z, root, g, h = residual_dT_tp(code, T[k], P[k], Y[k], aij, bi, daij, dbi, consts, ln_phis[k],
-                                       dln_phis_dT[k])
-        acc += z + g
     return acc

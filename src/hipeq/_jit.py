@@ -78,14 +78,10 @@ def inline_kernel(fn: F) -> F:
 
 
 def entry(fn: F) -> F:
-    """Compile an entry point that may allocate (work buffers, outputs): ``njit(cache=True)`` with the numpy error
-    model. Called from Python; it allocates and hands the buffers down to :func:`kernel` functions."""
-    return njit(cache=True, error_model=ERROR_MODEL, no_cfunc_wrapper=True)(fn)
-
-
-def parallel_entry(fn: F) -> F:
-    """As :func:`entry`, with ``parallel=True``: ``numba.prange`` loops run on numba's thread pool."""
-    return njit(cache=True, parallel=True, error_model=ERROR_MODEL, no_cfunc_wrapper=True)(fn)
+    """Compile an entry point that may allocate (work buffers, outputs): ``njit(cache=True, nogil=True)`` with the
+    numpy error model. Called from Python; it allocates and hands the buffers down to :func:`kernel` functions,
+    and releases the GIL as kernels do (``hipeq._threads``)."""
+    return njit(cache=True, nogil=True, error_model=ERROR_MODEL, no_cfunc_wrapper=True)(fn)
 
 
 def _options(**extra: Any) -> dict[str, Any]:

@@ -162,7 +162,8 @@ def test_compiled_polynomial_and_constant_forms():
 
 
 def test_thread_pool_and_single_thread_profiles_agree():
-    """Above PARALLEL_MIN_ROWS the profiles run on numba's thread pool, below on one thread: the same numbers."""
+    """Above PARALLEL_MIN_ROWS the profiles run in one range per thread (hipeq._threads), below in one range: the
+    same numbers."""
     from hipeq.data.thermochem import PARALLEL_MIN_ROWS, standard_enthalpies, standard_entropies
 
     names = ["N2", "H2", "NH3", "Ar", "CH4"]

@@ -162,6 +162,27 @@ def test_broadcasting_and_read_only_arrays():
                                rtol=0, atol=1e-15)
 
 
+@pytest.mark.parametrize("threads", [1, 2])
+def test_states_split_across_threads_equal_each_state_alone(threads):
+    """Above PARALLEL_MIN_STATES the states run in one range per thread (hipeq._threads): every state's numbers
+    are those of the state evaluated alone, bitwise, whatever the thread count."""
+    numba = pytest.importorskip("numba")
+    rng = np.random.default_rng(7)
+    T = rng.uniform(300.0, 1000.0, 97)
+    P = np.exp(rng.uniform(np.log(1e5), np.log(1e8), 97))
+    before = numba.get_num_threads()
+    numba.set_num_threads(min(threads, numba.config.NUMBA_NUM_THREADS))
+    try:
+        many = fugacity_coefficients(LOOP, T, P, Y_LOOP, eos="SRK")
+    finally:
+        numba.set_num_threads(before)
+    for k in (0, 31, 48, 49, 96):  # both ends of each thread's range
+        alone = fugacity_coefficients(LOOP, float(T[k]), float(P[k]), Y_LOOP, eos="SRK")
+        np.testing.assert_array_equal(many.ln_phis[k], alone.ln_phis)
+        np.testing.assert_array_equal(many.dln_phis_dT[k], alone.dln_phis_dT)
+        assert (many.Z[k], many.h_res[k], many.root[k]) == (alone.Z, alone.h_res, alone.root)
+
+
 @pytest.mark.parametrize(("T", "P", "root", "liquid"), [
     (350.0, 1e6, "liquid-like", True),  # three roots, the liquid one lower in Gibbs energy
     (400.0, 1e5, "gas-like", False),  # three roots, the vapour one lower

@@ -17,9 +17,7 @@ from __future__ import annotations
 
 import math
 
-from numba import prange
-
-from hipeq._jit import entry, parallel_entry
+from hipeq._jit import entry
 
 from hipeq.data.heat_capacity import trc_cp, trc_integral, trc_integral_over_T
 
@@ -100,16 +98,10 @@ def gibbs_rt_into(T, table, out):
         out[i] = (row[COL_HF] + h1 - h0 - T * (row[COL_S0] + s1 - s0)) / (R * T)
 
 
-@parallel_entry
-def profiles_batch(T, table, H, S):
-    """H°[k, i] and S°[k, i] for many temperatures T[k] [K], on the thread pool."""
-    for k in prange(T.shape[0]):
-        enthalpy_entropy_into(T[k], table, H[k], S[k])
-
-
 @entry
-def profiles_serial(T, table, H, S):
-    """:func:`profiles_batch` on one thread: the same numbers, without starting the thread pool (short T arrays,
-    e.g. the ~500 nodes of a solver's g0 table)."""
-    for k in range(T.shape[0]):
+def profiles_range(T, table, H, S, first, last):
+    """H°[k, i] and S°[k, i] for temperatures T[k] [K], k = first .. last - 1. Runs without the GIL: called once
+    per thread's range of temperatures (``hipeq._threads.run_in_ranges``), one call for short T arrays such as
+    the ~500 nodes of a solver's g0 table."""
+    for k in range(first, last):
         enthalpy_entropy_into(T[k], table, H[k], S[k])

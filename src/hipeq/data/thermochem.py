@@ -101,14 +101,15 @@ def _table(records: tuple[Species, ...]) -> np.ndarray:
 
 def _profiles(records: Sequence[Species], T: np.ndarray, extrapolate: bool) -> tuple[np.ndarray, np.ndarray]:
     """(H°, S°) arrays of shape T.shape + (n_species,), from the compiled core (ranges checked by the caller)."""
-    from hipeq.data._kernels import profiles_batch, profiles_serial
+    from hipeq._threads import run_in_ranges, thread_count
+    from hipeq.data._kernels import profiles_range
 
     table = standard_state_table(records)
     flat = np.ascontiguousarray(T, dtype=float).ravel()
     H = np.empty((flat.size, len(records)))
     S = np.empty_like(H)
-    kernel = profiles_batch if flat.size * len(records) >= PARALLEL_MIN_ROWS else profiles_serial
-    kernel(flat, table, H, S)
+    threads = thread_count(flat.size) if flat.size * len(records) >= PARALLEL_MIN_ROWS else 1
+    run_in_ranges(flat.size, threads, lambda first, last: profiles_range(flat, table, H, S, first, last))
     return H.reshape(T.shape + (len(records),)), S.reshape(T.shape + (len(records),))
 
 

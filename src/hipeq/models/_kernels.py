@@ -25,9 +25,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from numba import prange
 
-from hipeq._jit import entry, inline_kernel, inner_kernel, kernel, parallel_entry
+from hipeq._jit import entry, inline_kernel, inner_kernel, kernel
 
 from hipeq.constants import R  # J/(mol K)
 
@@ -749,25 +748,3 @@ def residual_dT_tp(code, T, P, y, aij, bi, daij, dbi, consts, out, dT):
         out[i] = 0.0
         dT[i] = 0.0
     return 1.0, ROOT_SINGLE, 0.0, 0.0
-
-
-# ---------------------------------------------------------------------------------------------------------
-# batch over states (used by the public fugacity_coefficients call)
-# ---------------------------------------------------------------------------------------------------------
-@parallel_entry
-def states_batch(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
-    """Evaluate ln phi, d ln phi/dT, Z, root code, g_res/RT and h_res/RT for many states (T[k], P[k], Y[k])."""
-    n = T.shape[0]
-    nc = comp.shape[0]
-    for k in prange(n):
-        aij = np.empty((nc, nc))
-        daij = np.empty((nc, nc))
-        bi = np.empty(nc)
-        dbi = np.empty(nc)
-        tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
-        z, root, g, h = residual_dT_tp(code, T[k], P[k], Y[k], aij, bi, daij, dbi, consts,
-                                       ln_phis[k], dln_phis_dT[k])
-        Z[k] = z
-        roots[k] = root
-        g_res[k] = g
-        h_res[k] = h

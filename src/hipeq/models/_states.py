@@ -1,4 +1,4 @@
-"""Compiled helpers of the public ``fugacity_coefficients`` call: the state check, a serial batch, the finish.
+"""Compiled helpers of the public ``fugacity_coefficients`` call: the state check, a range of states, the finish.
 
 Private layer (arrays and scalars in, status codes out, nothing raises). The Python face turns a non-zero status
 into an :class:`hipeq.errors.InputError` with the detailed message (:mod:`hipeq.models.inputs`).
@@ -19,7 +19,7 @@ STATES_BAD_T = 1
 STATES_BAD_P = 2
 STATES_BAD_Y = 3
 ROOT_OVERFLOW = -2  # set by finish_states: the state's results are not all finite
-PARALLEL_MIN_STATES = 32  # below this many states the Python face runs ``states_serial``
+PARALLEL_MIN_STATES = 32  # below this many states the Python face runs one ``states_range`` on its own thread
 
 
 @entry
@@ -52,17 +52,17 @@ def check_states(T, P, Y, t_min, t_max, p_max, sum_tolerance):
 
 
 @entry
-def states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
-    """Serial twin of ``_kernels.states_batch`` (same arguments and outputs) for a few states, where waking the
-    thread pool costs more than the work and stalls on a busy machine. (``states_batch`` is not called from
-    here: a cached kernel calling a cached parallel kernel segfaults when loaded from the cache, numba issue
-    #8578.)"""
-    n, nc = Y.shape
+def states_range(code, T, P, Y, comp, consts, kmat, first, last, ln_phis, dln_phis_dT, Z, roots, g_res, h_res):
+    """States first .. last - 1 of (T[k], P[k], Y[k]): ln phi_i, d ln phi_i/dT, Z, the root code, g_res/RT and
+    h_res/RT (``_kernels.residual_dT_tp``; the model's a_ij, b_i and their T-derivatives from ``tdep_into``).
+    Runs without the GIL: the Python face calls it once per thread's range of states
+    (``hipeq._threads.run_in_ranges``), one call for a few states."""
+    nc = Y.shape[1]
     aij = np.empty((nc, nc))
     daij = np.empty((nc, nc))
     bi = np.empty(nc)
     dbi = np.empty(nc)
-    for k in range(n):
+    for k in range(first, last):
         tdep_into(code, T[k], comp, consts, kmat, aij, bi, daij, dbi)
         Z[k], roots[k], g_res[k], h_res[k] = residual_dT_tp(code, T[k], P[k], Y[k], aij, bi, daij, dbi, consts,
                                                             ln_phis[k], dln_phis_dT[k])
@@ -71,7 +71,7 @@ def states_serial(code, T, P, Y, comp, consts, kmat, ln_phis, dln_phis_dT, Z, ro
 @entry
 def finish_states(code, T, P, Y, comp, consts, liquid_ratio, ln_phis, phis, dln_phis_dT, Z, volume, roots, g_res,
                   h_res):
-    """After ``states_batch``/``states_serial``: phi_i = exp(ln phi_i), v = Z R T / P [m3/mol], h_res/RT ->
+    """After ``states_range``: phi_i = exp(ln phi_i), v = Z R T / P [m3/mol], h_res/RT ->
     h_res [J/mol], and ROOT_LIQUID also where v/b < ``liquid_ratio`` (mixture co-volume of the cubic models,
     b = sum_i y_i Omega_b R T_ci / P_ci with the effective critical constants). A state whose results are not all
     finite (e.g. the virial correlation far below its temperature range, where exp(ln phi) overflows) is marked

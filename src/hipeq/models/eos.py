@@ -47,11 +47,12 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
+from hipeq._threads import run_in_ranges, thread_count
 from hipeq.data.species import Species
 from hipeq.data.species import species as lookup_species
 from hipeq.errors import InputError
 from hipeq.models import _kernels as K
-from hipeq.models._states import PARALLEL_MIN_STATES, ROOT_OVERFLOW, finish_states, states_serial
+from hipeq.models._states import PARALLEL_MIN_STATES, ROOT_OVERFLOW, finish_states, states_range
 from hipeq.models.inputs import state_arrays
 from hipeq.models.extensions import (GROUP_KIJ, VOLUME_TRANSLATIONS, eppr78_pairs, extended_consts,
                                      peneloux_shifts)
@@ -420,9 +421,10 @@ def _evaluate(model: CompiledModel, T: Any, P: Any, y: Any) -> FugacityResult:
     ln_phis, phis, dln_phis_dT = np.empty((n, nc)), np.empty((n, nc)), np.empty((n, nc))
     Z, volume, g_res, h_res = np.empty(n), np.empty(n), np.empty(n), np.empty(n)
     roots = np.empty(n, dtype=np.int64)
-    batch = K.states_batch if n >= PARALLEL_MIN_STATES else states_serial
-    batch(model.code, T_flat, P_flat, Y, model.comp, model.consts, model.kmat, ln_phis, dln_phis_dT, Z, roots,
-          g_res, h_res)
+    run_in_ranges(n, thread_count(n) if n >= PARALLEL_MIN_STATES else 1,
+                  lambda first, last: states_range(model.code, T_flat, P_flat, Y, model.comp, model.consts,
+                                                   model.kmat, first, last, ln_phis, dln_phis_dT, Z, roots, g_res,
+                                                   h_res))
     bad = finish_states(model.code, T_flat, P_flat, Y, model.comp, model.consts, LIQUID_LIKE_REDUCED_VOLUME,
                         ln_phis, phis, dln_phis_dT, Z, volume, roots, g_res, h_res)
     if bad >= 0:

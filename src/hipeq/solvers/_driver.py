@@ -42,13 +42,12 @@ from __future__ import annotations
 
 import math
 import threading
-from concurrent.futures import ThreadPoolExecutor
 from typing import NamedTuple
 
-import numba
 import numpy as np
 
 from hipeq._jit import DirectCall, inline_kernel, inner_kernel, kernel
+from hipeq._threads import run_in_ranges, thread_count
 from hipeq.models._kernels import (LIQUID_LIKE_REDUCED_VOLUME, MODEL_CUBIC, MODEL_LEWIS_RANDALL, MODEL_VIRIAL,
                                    OMEGA_A, OMEGA_B, R, ROOT_LIQUID, tparams_into)
 from hipeq.models.inputs import P_MAX
@@ -840,16 +839,8 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
             _scatter(order[a:b], rows[:k], ints[:k], out, out_ints)
 
     n_chunks = -(-n // chunk)
-    threads = max(1, min(numba.get_num_threads(), n_chunks))
-    bounds = [min(n, chunk * (n_chunks * t // threads)) for t in range(threads + 1)]
-    if threads == 1:
-        solve_range(0, n)
-    else:
-        pool = _thread_pool(threads)
-        done = [pool.submit(solve_range, bounds[t], bounds[t + 1]) for t in range(1, threads)]
-        solve_range(bounds[0], bounds[1])  # the calling thread takes the first range
-        for job in done:
-            job.result()
+    run_in_ranges(n_chunks, thread_count(n_chunks),
+                  lambda first, last: solve_range(min(n, first * chunk), min(n, last * chunk)))
     if not _fallback_possible(system, opts):
         return
     statuses = out_ints[:, STATUS]
@@ -864,21 +855,6 @@ def solve_many(system: SystemArrays, patterns: PatternArrays, T: np.ndarray, PV:
 
 
 _BATCH = object()  # a key of solve_many's direct calls (hipeq._jit.DirectCall)
-_pool: ThreadPoolExecutor | None = None
-_pool_workers = 0
-_pool_lock = threading.Lock()
-
-
-def _thread_pool(threads: int) -> ThreadPoolExecutor:
-    """A process-wide pool with at least ``threads - 1`` workers (the calling thread is the other one)."""
-    global _pool, _pool_workers
-    with _pool_lock:
-        if _pool is None or _pool_workers < threads - 1:
-            if _pool is not None:
-                _pool.shutdown(wait=False)
-            _pool_workers = threads - 1
-            _pool = ThreadPoolExecutor(max_workers=_pool_workers, thread_name_prefix="hipeq")
-        return _pool
 
 
 @kernel
