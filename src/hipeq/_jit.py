@@ -37,7 +37,7 @@ ERROR_MODEL = "numpy"  # x / 0.0 -> inf or NaN (caught by the kernels' finitenes
 # Every compiled function here is built without numba's C-callable wrapper (``no_cfunc_wrapper``): hipeq never
 # passes a compiled function as a first-class value, and the wrapper was lowered, optimised and machine-coded for
 # each of them on the first run.
-_KERNEL_OPTIONS = dict(_nrt=False, fastmath=FASTMATH, error_model=ERROR_MODEL, no_cfunc_wrapper=True)
+_KERNEL_OPTIONS = dict(_nrt=False, error_model=ERROR_MODEL, no_cfunc_wrapper=True)
 
 
 def kernel(fn: F) -> F:
@@ -66,7 +66,8 @@ def inner_kernel(fn: F) -> F:
     JIT it is the plain Python function."""
     if numba_config.DISABLE_JIT:
         return fn
-    dispatcher = _InnerDispatcher(py_func=fn, locals={}, targetoptions=_options(nopython=True, no_cpython_wrapper=True))
+    options = _options(nopython=True, no_cpython_wrapper=True)
+    dispatcher = _InnerDispatcher(py_func=fn, locals={}, targetoptions=options)
     dispatcher.enable_caching()
     return dispatcher  # type: ignore[return-value]
 
@@ -86,8 +87,7 @@ def entry(fn: F) -> F:
 
 def _options(**extra: Any) -> dict[str, Any]:
     """The kernels' numba options (a fresh copy with its own fast-math set), with ``extra`` added."""
-    options = dict(_KERNEL_OPTIONS, fastmath=set(FASTMATH), **extra)
-    return options
+    return dict(_KERNEL_OPTIONS, fastmath=set(FASTMATH), **extra)
 
 
 class DirectCall:
